@@ -1,0 +1,6 @@
+namespace PulseLadder.Demo;
+
+/// <summary>Generator of the invented demo campaign.</summary>
+public static class DemoCampaign
+{
+}

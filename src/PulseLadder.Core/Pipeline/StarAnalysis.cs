@@ -1,0 +1,30 @@
+using PulseLadder.Core.Classification;
+using PulseLadder.Core.Distances;
+using PulseLadder.Core.LightCurves;
+using PulseLadder.Core.PeriodSearch;
+
+namespace PulseLadder.Core.Pipeline;
+
+/// <summary>Everything one analysis of one star produced, with the settings and version that produced it.</summary>
+public sealed record StarAnalysis
+{
+    public string Star { get; init; } = "";
+    public string Field { get; init; } = "";
+    public string PipelineVersion { get; init; } = Pipeline.PipelineVersion.Current;
+    public PipelineSettings Settings { get; init; } = PipelineSettings.Default;
+    public ReviewOverrides Overrides { get; init; } = ReviewOverrides.None;
+    /// <summary>"ok", or the reason code of the stage that stopped the analysis (e.g. "too_few_points").</summary>
+    public string Outcome { get; init; } = "ok";
+    public string TimeMethod { get; init; } = "";
+    public int PointsIn { get; init; }
+    public int PointsUsed { get; init; }
+    public IReadOnlyList<Rejection> Rejections { get; init; } = [];
+    public PeriodSearchResult? Search { get; init; }
+    public PeriodEstimate? Period { get; init; }
+    public IReadOnlyList<BandFit> Fits { get; init; } = [];
+    public IReadOnlyList<ObserverOffset> ObserverOffsets { get; init; } = [];
+    public ClassSuggestion? Class { get; init; }
+    public DistanceResult? Distance { get; init; }
+    /// <summary>Conditions a reviewer should look at (e.g. "pdm_disagrees", "poor_phase_coverage").</summary>
+    public IReadOnlyList<string> Flags { get; init; } = [];
+}
