@@ -65,7 +65,15 @@ internal sealed class LeapSecondTable
         UpdatedJd = updatedJd;
     }
 
-    public const string ResourceName = "PulseLadder.Core.Data.time.leap-seconds.list";
+    /// <summary>
+    /// Manifest name of the embedded list. The csproj names resources "PulseLadder.Core.Data." + RecursiveDir + file,
+    /// and MSBuild keeps the directory separator of the build machine in RecursiveDir ("time/" on Linux, "time\\" on
+    /// Windows), so the name is looked up rather than hard-coded.
+    /// </summary>
+    public static string ResourceName =>
+        typeof(LeapSecondTable).Assembly.GetManifestResourceNames()
+            .FirstOrDefault(n => n.StartsWith("PulseLadder.Core.Data.time", StringComparison.Ordinal) && n.EndsWith("leap-seconds.list", StringComparison.Ordinal))
+        ?? "PulseLadder.Core.Data.time/leap-seconds.list";
 
     private static LeapSecondTable LoadEmbedded()
     {
