@@ -11,8 +11,8 @@ public static class BandWavelengths
 {
     private static readonly Dictionary<string, double> Micron = new(StringComparer.Ordinal)
     {
-        // Johnson-Cousins. V at 0.5495 um: CCM89's reference point (x = 1.82), so A_V/A_V = 1 exactly for CCM/O'D.
-        ["U"] = 0.365, ["B"] = 0.440, ["V"] = 0.5495, ["R"] = 0.640, ["I"] = 0.800,
+        // Johnson-Cousins. V at 1/1.82 = 0.54945 um: CCM89's reference point (y = 0), so A_V/A_V = 1 exactly for CCM/O'D.
+        ["U"] = 0.365, ["B"] = 0.440, ["V"] = 1.0 / 1.82, ["R"] = 0.640, ["I"] = 0.800,
         // 2MASS (Cohen et al. 2003 isophotal wavelengths, from memory); K = Johnson K at 2.20 um (CCM89 Table 3).
         ["J"] = 1.235, ["H"] = 1.662, ["Ks"] = 2.159, ["K"] = 2.20,
         // SDSS (Fukugita et al. 1996 effective wavelengths, from memory).
