@@ -1,3 +1,4 @@
+using System.Runtime.CompilerServices;
 namespace PulseLadder.Kernels;
 
 /// <summary>
@@ -8,19 +9,21 @@ namespace PulseLadder.Kernels;
 /// </summary>
 internal sealed class Fft
 {
-    private readonly double[] _tw;   // interleaved exp(+2 pi i j / n), j < n/2
+    private readonly double[] _tw;   // per stage of length len (offset len/2 complex): interleaved exp(+2 pi i j / len), j < len/2
     private readonly int[] _rev;     // bit-reversal partner for the first level of the permutation
 
     public Fft(int n)
     {
         if (n < 2 || (n & (n - 1)) != 0) throw new ArgumentException("FFT size must be a power of two >= 2.", nameof(n));
         Size = n;
-        _tw = new double[n];
-        for (int j = 0; j < n / 2; j++)
-        {
-            (double s, double c) = Math.SinCos(2.0 * Math.PI * j / n);
-            _tw[2 * j] = c; _tw[2 * j + 1] = s;
-        }
+        // Contiguous table per stage so every stage reads its twiddles sequentially.
+        _tw = new double[2 * n];
+        for (int len = 2; len <= n; len <<= 1)
+            for (int j = 0; j < len / 2; j++)
+            {
+                (double s, double c) = Math.SinCos(2.0 * Math.PI * j / len);
+                _tw[2 * (len / 2 + j)] = c; _tw[2 * (len / 2 + j) + 1] = s;
+            }
         int bits = System.Numerics.BitOperations.Log2((uint)n);
         _rev = new int[n];
         for (int i = 0; i < n; i++)
@@ -33,7 +36,8 @@ internal sealed class Fft
 
     public int Size { get; }
 
-    public void Transform(Span<double> a)
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
+    public unsafe void Transform(Span<double> a)
     {
         int n = Size;
         if (a.Length < 2 * n) throw new ArgumentException("buffer shorter than 2 n.", nameof(a));
@@ -66,22 +70,34 @@ internal sealed class Fft
             a[0] = r0 + a[2]; a[1] = i0 + a[3]; a[2] = r0 - a[2]; a[3] = i0 - a[3];
             return;
         }
-        double[] tw = _tw;
-        for (int len = 8; len <= n; len <<= 1)
+        // Stages whose butterflies stay inside one cache-sized block run block by block (one pass over memory for
+        // all of them); the remaining large stages stream the whole array once each.
+        int block = Math.Min(n, CacheBlock);
+        fixed (double* pa = a, ptw = _tw)
         {
-            int half = len >> 1, step = n / len;
-            for (int i = 0; i < n; i += len)
+            for (int b0 = 0; b0 < n; b0 += block)
+                for (int len = 8; len <= block; len <<= 1) Stage(pa + 2 * b0, block, len, ptw + len);
+            for (int len = 2 * block; len <= n; len <<= 1) Stage(pa, n, len, ptw + len);
+        }
+    }
+
+    private const int CacheBlock = 1 << 11;
+
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
+    private static unsafe void Stage(double* a, int count, int len, double* tw)
+    {
+        int half = len >> 1;
+        for (int i = 0; i < count; i += len)
+        {
+            double* lo = a + 2 * i, hi = lo + len;
+            for (int j = 0; j < half; j++)
             {
-                Span<double> lo = a.Slice(2 * i, len), hi = a.Slice(2 * i + len, len);
-                for (int j = 0, tj = 0; j < half; j++, tj += step)
-                {
-                    double wr = tw[2 * tj], wi = tw[2 * tj + 1];
-                    double xr = hi[2 * j], xi = hi[2 * j + 1];
-                    double vr = xr * wr - xi * wi, vi = xr * wi + xi * wr;
-                    double ur = lo[2 * j], ui = lo[2 * j + 1];
-                    lo[2 * j] = ur + vr; lo[2 * j + 1] = ui + vi;
-                    hi[2 * j] = ur - vr; hi[2 * j + 1] = ui - vi;
-                }
+                double wr = tw[2 * j], wi = tw[2 * j + 1];
+                double xr = hi[2 * j], xi = hi[2 * j + 1];
+                double vr = xr * wr - xi * wi, vi = xr * wi + xi * wr;
+                double ur = lo[2 * j], ui = lo[2 * j + 1];
+                lo[2 * j] = ur + vr; lo[2 * j + 1] = ui + vi;
+                hi[2 * j] = ur - vr; hi[2 * j + 1] = ui - vi;
             }
         }
     }
