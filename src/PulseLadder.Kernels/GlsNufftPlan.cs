@@ -84,9 +84,11 @@ public sealed class GlsNufftPlan
         long mm = count + (count & 1), mr = 1;
         while (mr < 2 * mm || mr < 4 * DefaultSpread) mr <<= 1;
         double log2 = Math.Log2(mr);
-        // Calibrated on the 2-core AVX-512 machine of docs/PERFORMANCE.md: ~3.5 ns per element per FFT stage (three
-        // transforms), ~1.5 ns per spread update (2 Msp updates per point and transform), ~10 ns per output frequency.
-        return 3.0 * mr * log2 * 3.5e-9 + 3.0 * n * 2 * DefaultSpread * 1.5e-9 + count * 10e-9;
+        // Calibrated on the 2-core AVX-512 machine of docs/PERFORMANCE.md: per element and FFT stage ~1.5 ns while a
+        // grid fits in cache (<= 2^18 complex, 4 MB) and ~3.5 ns beyond (three transforms); ~1.5 ns per spread update
+        // (2 Msp updates per point and transform); ~10 ns per output frequency.
+        double perStage = mr <= 1 << 18 ? 1.5e-9 : 3.5e-9;
+        return 3.0 * mr * log2 * perStage + 3.0 * n * 2 * DefaultSpread * 1.5e-9 + count * 10e-9;
     }
 
     /// <summary>Number of frequencies.</summary>
