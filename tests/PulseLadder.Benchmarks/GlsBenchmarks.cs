@@ -28,7 +28,9 @@ public class ExactGlsBenchmarks
     [Params(1, 2)]
     public int Threads { get; set; }
 
-    public static IEnumerable<GlsVariant> SupportedVariants => Enum.GetValues<GlsVariant>().Where(GlsVariantPicker.IsSupported);
+    // The scalar variant is ~15x slower; it has its own smaller class below so a full run stays within minutes.
+    public static IEnumerable<GlsVariant> SupportedVariants =>
+        Enum.GetValues<GlsVariant>().Where(v => v != GlsVariant.Scalar && GlsVariantPicker.IsSupported(v));
 
     [GlobalSetup]
     public void Setup()
@@ -41,6 +43,27 @@ public class ExactGlsBenchmarks
 
     [Benchmark]
     public void Exact() => _plan.Execute(_t, _y, _w, _power);
+}
+
+/// <summary>Scalar variant of the exact kernel (portable fallback), one core, N = 3000, M = 1e5.</summary>
+[WarmupCount(1)]
+[IterationCount(3)]
+[InvocationCount(1)]
+public class ScalarGlsBenchmarks
+{
+    private double[] _t = [], _y = [], _w = [], _power = [];
+    private GlsPlan _plan = null!;
+
+    [GlobalSetup]
+    public void Setup()
+    {
+        (_t, _y, _w) = Synthetic.Irregular(3000, 42, 3000.0);
+        _power = new double[100_000];
+        _plan = new GlsPlan(0.01, 1e-4, _power.Length, GlsVariant.Scalar, 1);
+    }
+
+    [Benchmark]
+    public void Scalar() => _plan.Execute(_t, _y, _w, _power);
 }
 
 /// <summary>

@@ -112,3 +112,32 @@ public class GlsVariantTests
         Assert.All(actual, p => Assert.False(double.IsNaN(p)));
     }
 }
+
+/// <summary>The plan owns its buffers: a warmed-up serial call allocates nothing.</summary>
+public class GlsPlanAllocationTests
+{
+    [Fact]
+    public void Execute_AllocatesNothing_AfterFirstCall()
+    {
+        var (t, y, w) = TestData.Irregular(200, 41);
+        var power = new double[5000];
+        var plan = new GlsPlan(0.01, 0.001, power.Length, GlsVariantPicker.Fastest);
+        plan.Execute(t, y, w, power);
+        long before = GC.GetAllocatedBytesForCurrentThread();
+        plan.Execute(t, y, w, power);
+        long after = GC.GetAllocatedBytesForCurrentThread();
+        Assert.Equal(0, after - before);
+    }
+
+    [Fact]
+    public void Gls_AllocatesNothing_InSteadyState()
+    {
+        var (t, y, w) = TestData.Irregular(150, 42);
+        var power = new double[3000];
+        Periodogram.Gls(t, y, w, 0.02, 0.0005, power);
+        long before = GC.GetAllocatedBytesForCurrentThread();
+        Periodogram.Gls(t, y, w, 0.03, 0.0004, power);
+        long after = GC.GetAllocatedBytesForCurrentThread();
+        Assert.Equal(0, after - before);
+    }
+}
