@@ -101,8 +101,9 @@ internal static class PeriodSearchEngine
         var plotIdx = SpectralTools.Thin(power);
         var plot = Thinned(power, grid, plotIdx);
         var wy = new double[plot.X.Length];
-        // A complex multiply costs about a tenth of a sin/cos pair: rotate along the grid unless it is much longer.
-        if (grid.Count <= 10L * plotIdx.Length) SpectralTools.WindowOnGrid(data.AllT, grid.F0, grid.Df, plotIdx, wy);
+        // A (vectorised) complex multiply costs a small fraction of a sin/cos pair: rotate along the grid unless it is
+        // much longer than the plot.
+        if (grid.Count <= 30L * plotIdx.Length) SpectralTools.WindowOnGrid(data.AllT, grid.F0, grid.Df, plotIdx, wy);
         else SpectralTools.Window(data.AllT, plot.X, wy);
 
         double bestFap = bootFap ?? peaks[0].Fap ?? 1.0;

@@ -64,12 +64,34 @@ internal static class SpectralTools
                 next++;
                 if (next == indices.Length) break;
             }
-            for (int i = 0; i < n; i++)
+            Rotate(re, im, sr, si);
+        }
+    }
+
+    /// <summary>(re, im) *= (sr, si) elementwise; System.Numerics vectors where the CPU has them.</summary>
+    private static void Rotate(double[] re, double[] im, double[] sr, double[] si)
+    {
+        int n = re.Length, i = 0;
+        if (System.Numerics.Vector.IsHardwareAccelerated)
+        {
+            int width = System.Numerics.Vector<double>.Count;
+            var vre = System.Runtime.InteropServices.MemoryMarshal.Cast<double, System.Numerics.Vector<double>>(re.AsSpan());
+            var vim = System.Runtime.InteropServices.MemoryMarshal.Cast<double, System.Numerics.Vector<double>>(im.AsSpan());
+            var vsr = System.Runtime.InteropServices.MemoryMarshal.Cast<double, System.Numerics.Vector<double>>(sr.AsSpan());
+            var vsi = System.Runtime.InteropServices.MemoryMarshal.Cast<double, System.Numerics.Vector<double>>(si.AsSpan());
+            for (int v = 0; v < vre.Length; v++)
             {
-                double r0 = re[i];
-                re[i] = r0 * sr[i] - im[i] * si[i];
-                im[i] = r0 * si[i] + im[i] * sr[i];
+                var r0 = vre[v];
+                vre[v] = r0 * vsr[v] - vim[v] * vsi[v];
+                vim[v] = r0 * vsi[v] + vim[v] * vsr[v];
             }
+            i = vre.Length * width;
+        }
+        for (; i < n; i++)
+        {
+            double r0 = re[i];
+            re[i] = r0 * sr[i] - im[i] * si[i];
+            im[i] = r0 * si[i] + im[i] * sr[i];
         }
     }
 
