@@ -227,10 +227,11 @@ internal static class BandFitter
             LinearFit.Solution? best = null;
             int bestOrder = 0;
             double bestBic = double.PositiveInfinity;
+            var normal = new LinearFit.Normal(x, stride, b.FixedColumns + 2 * cap, b.Y, b.W, active);
             for (int n = 1; n <= cap; n++)
             {
                 int p = b.FixedColumns + 2 * n;
-                var sol = LinearFit.Solve(x, stride, p, b.Y, b.W, active);
+                var sol = normal.Solve(p, withCovariance: false);
                 if (sol is null) { scores.Add(new OrderScore(n, 0, 0, "singular")); continue; }
                 double bic = sol.ChiSquare + p * Math.Log(nAct);
                 string? why = Rings(b, sol, n, active) ? "ringing" : null;
@@ -238,6 +239,7 @@ internal static class BandFitter
                 if (why is null && bic < bestBic) { bestBic = bic; best = sol; bestOrder = n; }
             }
             if (best is null) return null;
+            best = normal.Solve(b.FixedColumns + 2 * bestOrder)!;
             if (scores.Any(s => s.Rejected == "ringing")) flags.Add("ringing_orders_rejected");
             return (best, 2 * bestOrder, scores, flags);
         }
