@@ -161,10 +161,10 @@ internal static class BandFitter
         /// <summary>Highest Fourier order the point count and phase coverage allow (0 when not even order 1).</summary>
         public int OwnOrderCapacity() => OrderCapacity(Enumerable.Repeat(true, N).ToArray(), 20);
 
-        public int OrderCapacity(bool[] active, int maxOrder)
+        public int OrderCapacity(bool[] active, int maxOrder, bool ignorePoints = false)
         {
             int nAct = active.Count(a => a);
-            int byPoints = (nAct - FixedColumns) / 4; // n <= (N-1)/4 (SCIENCE.md 2.2), offsets counted as parameters
+            int byPoints = ignorePoints ? maxOrder : (nAct - FixedColumns) / 4; // n <= (N-1)/4 (SCIENCE.md 2.2), offsets counted as parameters
             double gap = LargestGap(active);
             int byGap = gap <= 0 ? maxOrder : (int)Math.Floor(1.0 / (2.0 * gap));
             return Math.Max(0, Math.Min(maxOrder, Math.Min(byPoints, byGap)));
@@ -227,14 +227,17 @@ internal static class BandFitter
             LinearFit.Solution? best = null;
             int bestOrder = 0;
             double bestBic = double.PositiveInfinity;
-            var normal = new LinearFit.Normal(x, stride, b.FixedColumns + 2 * cap, b.Y, b.W, active);
-            for (int n = 1; n <= cap; n++)
+            // Orders beyond the guards are still scored (and shown, marked) so a reviewer sees what was excluded.
+            int scored = Math.Max(cap, Math.Min(maxOrder, (nAct - b.FixedColumns - 1) / 2));
+            int byGap = b.OrderCapacity(active, maxOrder, ignorePoints: true);
+            var normal = new LinearFit.Normal(x, stride, b.FixedColumns + 2 * scored, b.Y, b.W, active);
+            for (int n = 1; n <= scored; n++)
             {
                 int p = b.FixedColumns + 2 * n;
                 var sol = normal.Solve(p, withCovariance: false);
                 if (sol is null) { scores.Add(new OrderScore(n, 0, 0, "singular")); continue; }
                 double bic = sol.ChiSquare + p * Math.Log(nAct);
-                string? why = Rings(b, sol, n, active) ? "ringing" : null;
+                string? why = n > cap ? (n > byGap ? "phase_gap" : "too_few_points") : Rings(b, sol, n, active) ? "ringing" : null;
                 scores.Add(new OrderScore(n, sol.ChiSquare, bic, why));
                 if (why is null && bic < bestBic) { bestBic = bic; best = sol; bestOrder = n; }
             }
