@@ -56,7 +56,7 @@ internal static class BandFitter
             if (b.OwnOrderCapacity() >= 2)
                 results[b.Name] = FitBand(b, new FourierModel(maxOrder), cleaning);
         }
-        var template = results.Values.Where(r => r.Order >= 2)
+        var template = results.Values.Where(r => !r.Failed && r.Order >= 2)
             .OrderByDescending(r => r.Data.N).ThenBy(r => r.Data.Name, StringComparer.Ordinal).FirstOrDefault();
         foreach (var b in bands)
         {
@@ -72,7 +72,7 @@ internal static class BandFitter
         }
 
         // Common phase origin: epoch of maximum of the best-sampled band (the first own fit, else any fit).
-        var reference = template ?? results.Values.OrderByDescending(r => r.Data.N).ThenBy(r => r.Data.Name, StringComparer.Ordinal).FirstOrDefault();
+        var reference = template ?? results.Values.Where(r => !r.Failed).OrderByDescending(r => r.Data.N).ThenBy(r => r.Data.Name, StringComparer.Ordinal).FirstOrDefault();
         double phaseZero = reference?.EpochOfMax ?? t0;
 
         var fits = new List<BandFit>();
@@ -82,6 +82,7 @@ internal static class BandFitter
         {
             if (!results.TryGetValue(b.Name, out var r)) continue;
             rejections.AddRange(r.Rejections);
+            if (r.Failed) continue;
             offsets.AddRange(r.Offsets);
             for (int j = 0; j < b.N; j++) if (r.Active[j]) keptIdx.Add(b.Index[j]);
             var flags = new List<string>(r.Flags);
@@ -237,7 +238,8 @@ internal static class BandFitter
                 var sol = normal.Solve(p, withCovariance: false);
                 if (sol is null) { scores.Add(new OrderScore(n, 0, 0, "singular")); continue; }
                 double bic = sol.ChiSquare + p * Math.Log(nAct);
-                string? why = n > cap ? (n > byGap ? "phase_gap" : "too_few_points") : Rings(b, sol, n, active) ? "ringing" : null;
+                // Order 1 is the minimal periodic model and is never refused for ringing (poor coverage is flagged instead).
+                string? why = n > cap ? (n > byGap ? "phase_gap" : "too_few_points") : n > 1 && Rings(b, sol, n, active) ? "ringing" : null;
                 scores.Add(new OrderScore(n, sol.ChiSquare, bic, why));
                 if (why is null && bic < bestBic) { bestBic = bic; best = sol; bestOrder = n; }
             }
@@ -304,7 +306,11 @@ internal static class BandFitter
     }
 
     internal sealed record BandResult(BandData Data, BandFit Fit, double[] Cos, double[] Sin, int Order, bool[] Active,
-        List<Rejection> Rejections, List<ObserverOffset> Offsets, List<string> Flags, double EpochOfMax);
+        List<Rejection> Rejections, List<ObserverOffset> Offsets, List<string> Flags, double EpochOfMax)
+    {
+        /// <summary>True when no model could be fitted (all points reported as rejections).</summary>
+        public bool Failed { get; init; }
+    }
 
     internal static (double[] Cos, double[] Sin) Split(double[] beta, int fixedColumns, int order)
     {
@@ -364,9 +370,16 @@ internal static class BandFitter
         {
             var (sol, cols, _, _) = chosen.Value;
             Residuals(b, x, stride, sol, b.FixedColumns + cols, z);
-            if (FlagBadNights(b, z, active, badNight))
+            // Clipped points count towards their night's rms: a night whose points were clipped one by one is
+            // still a bad night, and is reported as such.
+            var eligible = Enumerable.Repeat(true, b.N).ToArray();
+            if (FlagBadNights(b, z, eligible, badNight))
             {
-                for (int j = 0; j < b.N; j++) active[j] = !clipped[j] && !badNight[j];
+                for (int j = 0; j < b.N; j++)
+                {
+                    if (badNight[j]) clipped[j] = false;
+                    active[j] = !clipped[j] && !badNight[j];
+                }
                 chosen = model.Choose(b, x, stride, active) ?? chosen;
             }
         }
@@ -382,7 +395,7 @@ internal static class BandFitter
                 rejections.Add(Reject(b.Source[b.Index[j]], "fit", "band_too_sparse", "no stable fit for band " + b.Name));
             }
             var empty = new BandFit { Band = b.Name, PeriodDays = b.Period, PhaseZeroBjd = b.T0, A0 = b.YMean, MagnitudeMean = b.YMean, IntensityMeanMag = b.YMean, Flags = ["no_fit"] };
-            return new BandResult(b, empty, [], [], 0, active, rejections, [], flags, b.T0);
+            return new BandResult(b, empty, [], [], 0, active, rejections, [], flags, b.T0) { Failed = true };
         }
 
         var (final, shapeCols, scores, modelFlags) = chosen.Value;

@@ -26,7 +26,7 @@ public sealed class FourierFitTests
     private static List<LightCurvePoint> D30() =>
         D30T.Select((t, i) => new LightCurvePoint(i + 1, t, "V", D30M[i], 0.030, "")).ToList();
 
-    /// <summary>Points sampling m(phi) at times spread over many cycles (phase origin t = 0), noiseless.</summary>
+    /// <summary>Points sampling m(phi) from <paramref name="t0"/> on over many cycles (phase origin 2455000.0), noiseless.</summary>
     internal static List<LightCurvePoint> Sample(Func<double, double> curve, double period, int n, double t0 = 2455000.0, string band = "V", string observer = "", double err = 0.01, long firstId = 1)
     {
         var pts = new List<LightCurvePoint>(n);
@@ -34,7 +34,8 @@ public sealed class FourierFitTests
         {
             // Irrational step in phase so the sampling is dense and not commensurate with the period.
             double t = t0 + i * period * 1.6180339887 + (i % 7) * 0.013;
-            double ph = ((t - t0) / period) % 1.0;
+            double ph = ((t - 2455000.0) / period) % 1.0;
+            if (ph < 0) ph += 1;
             pts.Add(new LightCurvePoint(firstId + i, t, band, curve(ph), err, observer));
         }
         return pts;
