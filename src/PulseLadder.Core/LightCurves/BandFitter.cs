@@ -227,21 +227,34 @@ internal static class BandFitter
             var scores = new List<OrderScore>();
             LinearFit.Solution? best = null;
             int bestOrder = 0;
-            double bestBic = double.PositiveInfinity;
             // Orders beyond the guards are still scored (and shown, marked) so a reviewer sees what was excluded.
             int scored = Math.Max(cap, Math.Min(maxOrder, (nAct - b.FixedColumns - 1) / 2));
             int byGap = b.OrderCapacity(active, maxOrder, ignorePoints: true);
             var normal = new LinearFit.Normal(x, stride, b.FixedColumns + 2 * scored, b.Y, b.W, active);
+            var candidates = new List<(int Order, LinearFit.Solution Sol, double Bic)>();
             for (int n = 1; n <= scored; n++)
             {
                 int p = b.FixedColumns + 2 * n;
                 var sol = normal.Solve(p, withCovariance: false);
                 if (sol is null) { scores.Add(new OrderScore(n, 0, 0, "singular")); continue; }
                 double bic = sol.ChiSquare + p * Math.Log(nAct);
-                // Order 1 is the minimal periodic model and is never refused for ringing (poor coverage is flagged instead).
-                string? why = n > cap ? (n > byGap ? "phase_gap" : "too_few_points") : n > 1 && Rings(b, sol, n, active) ? "ringing" : null;
+                string? why = n > cap ? (n > byGap ? "phase_gap" : "too_few_points") : null;
                 scores.Add(new OrderScore(n, sol.ChiSquare, bic, why));
-                if (why is null && bic < bestBic) { bestBic = bic; best = sol; bestOrder = n; }
+                if (why is null) candidates.Add((n, sol, bic));
+            }
+            // Ringing is checked from the best BIC down and only until an order passes (order 1 is the minimal
+            // periodic model and is never refused: poor coverage is flagged instead).
+            foreach (var c in candidates.OrderBy(c => c.Bic))
+            {
+                if (c.Order > 1 && Rings(b, c.Sol, c.Order, active))
+                {
+                    int i = scores.FindIndex(s => s.Order == c.Order);
+                    scores[i] = scores[i] with { Rejected = "ringing" };
+                    continue;
+                }
+                best = c.Sol;
+                bestOrder = c.Order;
+                break;
             }
             if (best is null) return null;
             best = normal.Solve(b.FixedColumns + 2 * bestOrder)!;
