@@ -55,7 +55,10 @@ public static class Classifier
     internal static ClassSuggestion Suggest(PeriodEstimate? period, PeriodSearchResult? search, IReadOnlyList<BandFit> fits, FieldContext? field)
     {
         var reasons = new List<string>();
-        if (search?.FailureReason is { } failure)
+        // A period chosen by the reviewer stands even where the automatic search found nothing significant.
+        bool reviewerPeriod = period?.Method == "reviewer" && period.PeriodDays > 0 && double.IsFinite(period.PeriodDays);
+        if (reviewerPeriod) reasons.Add("period chosen by the reviewer");
+        if (!reviewerPeriod && search?.FailureReason is { } failure)
         {
             if (failure == "no_significant_period")
                 return new ClassSuggestion(PulsatorClass.NotVariable, 0.7, ["period search found no significant period"], "suggested");
@@ -67,7 +70,7 @@ public static class Classifier
         double P = p.Value;
 
         var peakFap = search?.Peaks is { Count: > 0 } peaks ? peaks[0].Fap : null;
-        if (peakFap is { } fap && fap > MaxFap)
+        if (!reviewerPeriod && peakFap is { } fap && fap > MaxFap)
             return new ClassSuggestion(PulsatorClass.NotVariable, 0.6,
                 [$"best peak false-alarm probability {F(fap, "0.###")} > {F(MaxFap)}: variability not established"], "suggested");
 
@@ -89,6 +92,7 @@ public static class Classifier
             }
         }
         reasons.Insert(0, $"period {F(P, "0.######")} d (log P = {F(Math.Log10(P), "0.000")})");
+        if (peakFap is { } fapShown && !reviewerPeriod) reasons.Add($"best peak false-alarm probability {F(fapShown, "0.0E+0")}");
 
         var (cls, conf) = P switch
         {

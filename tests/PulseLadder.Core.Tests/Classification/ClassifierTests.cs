@@ -101,6 +101,16 @@ public sealed class ClassifierTests
     }
 
     [Fact]
+    public void Classify_HonoursReviewerPeriod_WhenSearchFoundNothing()
+    {
+        var none = new PeriodSearchResult { FailureReason = "no_significant_period" };
+        var fits = new[] { new BandFit { Band = "I", Points = 100, Order = 3, Amplitude = 0.45, AmplitudeErr = 0.01, R21 = 0.46 } };
+        var s = Classifier.Classify(Anon, new PeriodEstimate { PeriodDays = 0.62, Method = "reviewer" }, none, fits, null);
+        Assert.Equal(PulsatorClass.RRLyraeAB, s.Class);
+        Assert.Contains(s.Reasons, r => r.Contains("reviewer"));
+    }
+
+    [Fact]
     public void Classify_NeverThrows_OnOddInput()
     {
         Assert.Equal(PulsatorClass.Unknown, Classifier.Classify(Anon, null, null, [], null).Class);
