@@ -49,25 +49,9 @@ public class OpenDataDistanceTests(ITestOutputHelper output)
     [Fact]
     public void FieldSummary_ReproducesLmcModulus_FromOgle3CatalogueWithGalacticWvi()
     {
-        var rows = ReadCsv(DataPath("lmc-cepheids", "catalogue", "ogle3_values.csv"));
-        var settings = new DistanceSettings { CepheidRelationId = "benedict2007_wvi", EstimateEbvFromColour = false };
-        var accepted = new List<FieldStarDistance>();
-        int fundamentalised = 0;
-        foreach (var row in rows)
-        {
-            if (row["mean_I_mag"].Length == 0 || row["mean_V_mag"].Length == 0) continue; // three long-period stars: V only
-            var cls = row["mode"] == "1O" ? PulsatorClass.ClassicalCepheidFirstOvertone : PulsatorClass.ClassicalCepheidFundamental;
-            var star = new StarInfo(row["star_id"], "LMC", SkyPosition.FromDegrees(D(row["ra_deg"]), D(row["dec_deg"])), cls, null, null, -0.35);
-            var r = DistanceEstimator.EstimateDistance(star, cls, D(row["period_d"]), D(row["period_err_d"]),
-                [Fit("V", D(row["mean_V_mag"])), Fit("I", D(row["mean_I_mag"]))], settings);
-            Assert.Null(r.FailureReason);
-            Assert.Equal("benedict2007_wvi", r.RelationId);
-            if (r.Fundamentalisation is not null) fundamentalised++;
-            accepted.Add(FieldStarDistance.FromResult(star.Name, r)!);
-        }
-        Assert.Equal(13, accepted.Count);
+        var f = LmcWviSummary(-0.35, out int fundamentalised, out int n);
+        Assert.Equal(13, n);
         Assert.Equal(4, fundamentalised);
-        var f = FieldSummarizer.Summarize(accepted, new FieldSummarySettings());
         Assert.Null(f.FailureReason);
         output.WriteLine(FormattableString.Invariant($"mu = {f.Mu:F4} +- {f.MuErrStat:F4} (stat) +- {f.MuErrSys:F4} (sys); N = {f.StarsUsed}/{f.StarsIn}; chi2_red = {f.ChiSquareRed:F3}; sigma_int = {f.SigmaIntUsed:F3}; free slope {f.FreeSlopeFit!.Slope:F3} +- {f.FreeSlopeFit.SlopeErr:F3}; d = {f.DistanceKpc:F2} +- {f.DistanceKpcErr:F2} kpc"));
         double combined = Math.Sqrt(f.MuErr * f.MuErr + 0.026 * 0.026);
@@ -75,6 +59,40 @@ public class OpenDataDistanceTests(ITestOutputHelper output)
         Assert.InRange(f.DistanceKpc, 40, 60);
         // Free slope of a 13-star sample is a diagnostic only; it must at least be a Leavitt-law slope.
         Assert.InRange(f.FreeSlopeFit!.Slope, -4.0, -2.8);
+    }
+
+    // Benedict et al. 2007 (arXiv astro-ph/0612465 abstract [C]): their W_VI relation gives an LMC modulus of
+    // 18.50 +- 0.03 uncorrected for metallicity. With no metallicity term ([Fe/H] = z_ref = 0) our 13 OGLE-III stars
+    // must agree with that within our statistical error and their quoted 0.03.
+    [Fact]
+    public void FieldSummary_AgreesWithBenedict2007LmcModulus_WithoutMetallicityTerm()
+    {
+        var f = LmcWviSummary(0.0, out _, out _);
+        output.WriteLine(FormattableString.Invariant($"no-Z mu = {f.Mu:F4} +- {f.MuErrStat:F4}"));
+        double tol = Math.Sqrt(f.MuErrStat * f.MuErrStat + 0.03 * 0.03);
+        Assert.InRange(f.Mu, 18.50 - tol, 18.50 + tol);
+    }
+
+    private static FieldSummary LmcWviSummary(double feh, out int fundamentalised, out int count)
+    {
+        var rows = ReadCsv(DataPath("lmc-cepheids", "catalogue", "ogle3_values.csv"));
+        var settings = new DistanceSettings { CepheidRelationId = "benedict2007_wvi", EstimateEbvFromColour = false };
+        var accepted = new List<FieldStarDistance>();
+        fundamentalised = 0;
+        foreach (var row in rows)
+        {
+            if (row["mean_I_mag"].Length == 0 || row["mean_V_mag"].Length == 0) continue; // three long-period stars: V only
+            var cls = row["mode"] == "1O" ? PulsatorClass.ClassicalCepheidFirstOvertone : PulsatorClass.ClassicalCepheidFundamental;
+            var star = new StarInfo(row["star_id"], "LMC", SkyPosition.FromDegrees(D(row["ra_deg"]), D(row["dec_deg"])), cls, null, null, feh);
+            var r = DistanceEstimator.EstimateDistance(star, cls, D(row["period_d"]), D(row["period_err_d"]),
+                [Fit("V", D(row["mean_V_mag"])), Fit("I", D(row["mean_I_mag"]))], settings);
+            Assert.Null(r.FailureReason);
+            Assert.Equal("benedict2007_wvi", r.RelationId);
+            if (r.Fundamentalisation is not null) fundamentalised++;
+            accepted.Add(FieldStarDistance.FromResult(star.Name, r)!);
+        }
+        count = accepted.Count;
+        return FieldSummarizer.Summarize(accepted, new FieldSummarySettings());
     }
 
     // Circularity check the other way round: the LMC-anchored Udalski 1999 W_I applied to the same stars returns
