@@ -1,6 +1,9 @@
+using System.Text.Json.Serialization;
+
 namespace PulseLadder.Core.Extinction;
 
 /// <summary>Interstellar extinction laws PulseLadder implements (all one-parameter families in R_V).</summary>
+[JsonConverter(typeof(JsonStringEnumConverter<ExtinctionLaw>))]
 public enum ExtinctionLaw
 {
     /// <summary>Cardelli, Clayton &amp; Mathis 1989, ApJ 345, 245.</summary>
