@@ -243,6 +243,25 @@ public class DemoCampaignTests(DemoCampaignFixture campaign)
     }
 
     [Fact]
+    public void StarList_DeclaresTrueClasses_WhenDeclareClassesSet()
+    {
+        var data = DemoCampaign.Generate(Small with { DeclareClasses = true });
+        var text = DemoCampaign.Render(data).Single(f => f.Name == DemoFiles.StarList).Content;
+        var parsed = StarListCsv.Parse(new StringReader(text), DemoFiles.StarList);
+        Assert.True(parsed.IsSuccess, string.Join("; ", parsed.Errors.Take(3)));
+        var expected = new Dictionary<string, PulsatorClass>
+        {
+            [DemoClass.CepheidF] = PulsatorClass.ClassicalCepheidFundamental,
+            [DemoClass.CepheidFirstOvertone] = PulsatorClass.ClassicalCepheidFirstOvertone,
+            [DemoClass.RRab] = PulsatorClass.RRLyraeAB,
+            [DemoClass.RRc] = PulsatorClass.RRLyraeC,
+            [DemoClass.Constant] = PulsatorClass.NotVariable,
+        };
+        Assert.Equal(data.Stars.Select(s => (PulsatorClass?)expected[s.Class]), parsed.Rows.Select(r => r.DeclaredClass));
+        Assert.All(StarListCsv.Parse(new StringReader(campaign.File(DemoFiles.StarList).Content), "s").Rows, r => Assert.Null(r.DeclaredClass));
+    }
+
+    [Fact]
     public void GeneratedFiles_ParseWithZeroErrors_WhenReadByIngest()
     {
         var starList = StarListCsv.Parse(new StringReader(campaign.File(DemoFiles.StarList).Content), DemoFiles.StarList);
