@@ -1,0 +1,199 @@
+// Field page: star table (sort, filter, search), distance summary with its error budget, PL diagram.
+import { api, STATE_LABELS, CLASS_LABELS, CLASS_SHORT } from './api.js';
+import { el, replace, $, num, pm, sig, kpc, queryInt } from './dom.js';
+import { initShell } from './shell.js';
+import { scatter } from './plots.js';
+import { budgetTable } from './budget.js';
+
+initShell();
+
+const fieldId = queryInt('id');
+let rows = [];
+let bands = [];
+let summary = null;
+const sort = { key: 'star', dir: 1 };
+
+if (fieldId === null) {
+  replace($('main'), el('p', { class: 'empty', text: 'No field chosen. Pick one on the Campaign page.' }));
+} else {
+  load();
+}
+
+async function loadAllStars() {
+  const all = [];
+  for (let page = 1; ; page++) {
+    const res = await api.stars(fieldId, { page: String(page), page_size: '500' });
+    all.push(...res.items);
+    if (all.length >= res.total || res.items.length === 0) break;
+  }
+  return all;
+}
+
+async function load() {
+  const [fields, stars, sum] = await Promise.all([api.fields(), loadAllStars(), api.summary(fieldId)]);
+  const field = fields.find((f) => f.field_id === fieldId);
+  const name = field?.name ?? `Field ${fieldId}`;
+  $('#field-name').textContent = name;
+  document.title = `${name} · PulseLadder`;
+  if (field) {
+    $('#field-counts').textContent = `${field.stars} stars · ${field.analysed} analysed · ${field.accepted} accepted · ${field.rejected} rejected · ${field.awaiting} need a look`;
+  }
+  rows = stars;
+  summary = sum;
+  bands = [...new Set(rows.flatMap((r) => Object.keys(r.mean_mag ?? {})))].sort(bandOrder);
+  fillClassFilter();
+  renderTable();
+  renderSummary();
+  renderPl();
+  updateExportLinks();
+}
+
+const BAND_ORDER = ['U', 'B', 'V', 'R', 'I', 'J', 'H', 'Ks', 'K', 'u', 'g', 'r', 'i', 'z'];
+function bandOrder(a, b) {
+  const ia = BAND_ORDER.indexOf(a); const ib = BAND_ORDER.indexOf(b);
+  return (ia < 0 ? 99 : ia) - (ib < 0 ? 99 : ib) || a.localeCompare(b);
+}
+
+function fillClassFilter() {
+  const sel = $('#filter-class');
+  const classes = [...new Set(rows.map((r) => r.class ?? 'unknown'))].sort();
+  replace(sel, el('option', { value: '', text: 'all' }), classes.map((c) => el('option', { value: c, text: CLASS_LABELS[c] ?? c })));
+}
+
+function updateExportLinks() {
+  const acc = $('#export-accepted').checked;
+  $('#export-csv').href = api.exportUrl(fieldId, 'csv', acc);
+  $('#export-json').href = api.exportUrl(fieldId, 'json', acc);
+}
+
+// ---------- Table ----------
+const COLUMNS = () => [
+  { key: 'star', label: 'Star', value: (r) => r.star },
+  { key: 'state', label: 'Review', value: (r) => (r.pending ? 'pending' : r.state) },
+  { key: 'period_days', label: 'Period (d)', value: (r) => r.period_days, num: true },
+  { key: 'class', label: 'Class', value: (r) => r.class ?? '' },
+  ...bands.map((b) => ({ key: `mag_${b}`, label: `mean ${b}`, value: (r) => r.mean_mag?.[b] ?? null, num: true })),
+  { key: 'distance_modulus', label: 'μ (mag)', value: (r) => r.distance_modulus, num: true },
+  { key: 'distance_pc', label: 'Distance', value: (r) => r.distance_pc, num: true },
+  { key: 'flags', label: 'Flags', value: (r) => (r.flags ?? []).length },
+];
+
+function filtered() {
+  const q = $('#search').value.trim().toLowerCase();
+  const st = $('#filter-state').value;
+  const cls = $('#filter-class').value;
+  return rows.filter((r) => {
+    if (q && !r.star.toLowerCase().includes(q)) return false;
+    if (st === 'pending' && !r.pending) return false;
+    if (st === 'flagged' && !(r.flags ?? []).length) return false;
+    if (st && st !== 'pending' && st !== 'flagged' && r.state !== st) return false;
+    if (cls && (r.class ?? 'unknown') !== cls) return false;
+    return true;
+  });
+}
+
+function renderTable() {
+  const cols = COLUMNS();
+  const table = $('#stars-table');
+  replace(table.tHead, el('tr', {}, cols.map((c) => el('th', {
+    scope: 'col', class: c.num ? 'num' : '',
+    'aria-sort': sort.key === c.key ? (sort.dir > 0 ? 'ascending' : 'descending') : 'none',
+  }, el('button', {
+    type: 'button', class: 'sort', text: c.label,
+    on: { click: () => { sort.dir = sort.key === c.key ? -sort.dir : 1; sort.key = c.key; renderTable(); } },
+  })))));
+  const col = cols.find((c) => c.key === sort.key) ?? cols[0];
+  const list = filtered().sort((a, b) => {
+    const va = col.value(a); const vb = col.value(b);
+    if (va === null || va === undefined) return 1;
+    if (vb === null || vb === undefined) return -1;
+    return (typeof va === 'number' ? va - vb : String(va).localeCompare(String(vb))) * sort.dir;
+  });
+  $('#stars-count').textContent = `${list.length} of ${rows.length} stars shown`;
+  replace(table.tBodies[0], list.map((r) => el('tr', { class: 'clickable', dataset: { starId: r.star_id }, on: { click: (e) => { if (e.target.tagName !== 'A') location.href = `star.html?id=${r.star_id}`; } } },
+    el('td', { class: 'nowrap' }, el('a', { href: `star.html?id=${r.star_id}`, text: r.star })),
+    el('td', {}, stateChip(r)),
+    el('td', { class: 'num', text: sig(r.period_days, 7) }),
+    el('td', { class: 'nowrap', text: r.class ? (CLASS_SHORT[r.class] ?? r.class) : '–', title: r.class ? `${CLASS_LABELS[r.class] ?? r.class}${r.class_source ? ` (${r.class_source.replace('_', ' ')})` : ''}` : null }),
+    bands.map((b) => el('td', { class: 'num', text: num(r.mean_mag?.[b] ?? null, 3) })),
+    el('td', { class: 'num', text: pm(r.distance_modulus, r.distance_modulus_err, 2) }),
+    el('td', { class: 'num', text: kpc(r.distance_pc, r.distance_pc_err) }),
+    el('td', {}, (r.flags ?? []).map((f) => el('span', { class: 'chip chip-flag', text: f }))))));
+}
+
+export function stateChip(r) {
+  if (r.pending) return el('span', { class: 'chip chip-pending', text: 'Re-analysing' });
+  return el('span', { class: `chip chip-${r.state}`, text: STATE_LABELS[r.state] ?? r.state });
+}
+
+for (const id of ['#search', '#filter-state', '#filter-class']) $(id).addEventListener('input', renderTable);
+$('#export-accepted').addEventListener('change', updateExportLinks);
+
+// ---------- Summary ----------
+function renderSummary() {
+  const box = $('#summary');
+  const s = summary;
+  if (!s) {
+    replace(box, el('p', { class: 'muted', text: 'No accepted star yet, so no field distance. Accept stars on their pages or in the review queue.' }));
+    return;
+  }
+  const budget = s.error_budget ?? s.budget ?? null;
+  replace(box,
+    el('dl', { class: 'kv', id: 'summary-values' },
+      el('dt', { text: 'Distance modulus' }), el('dd', { id: 'summary-mu', text: `${pm(s.mu, s.mu_err, 3)} mag` }),
+      el('dt', { text: 'Distance' }), el('dd', { text: kpc(s.distance_pc, s.distance_pc_err) }),
+      el('dt', { text: 'Stars used' }), el('dd', { id: 'summary-n', text: String(s.n_used ?? '–') }),
+      s.n_clipped !== undefined ? [el('dt', { text: 'Clipped as outliers' }), el('dd', { text: String(s.n_clipped) })] : null,
+      s.relation_id ? [el('dt', { text: 'Relation' }), el('dd', { text: s.relation_id })] : null),
+    budget ? budgetTable(budget, s.mu_err) : null);
+}
+
+// ---------- PL diagram ----------
+function plPoints() {
+  const pts = summary?.pl_points ?? summary?.pl?.points ?? summary?.points ?? null;
+  if (Array.isArray(pts) && pts.length) {
+    const byId = new Map(rows.map((r) => [r.star_id, r]));
+    return {
+      band: summary.pl_band ?? summary.pl?.band ?? summary.band ?? '',
+      points: pts.map((p) => ({
+        x: p.log_period ?? p.log_p ?? (p.period_days ? Math.log10(p.period_days) : null),
+        y: p.mag ?? p.magnitude ?? p.m ?? null,
+        state: p.state ?? byId.get(p.star_id)?.state ?? 'awaiting',
+      })).filter((p) => p.x !== null && p.y !== null),
+    };
+  }
+  // Fall back to the table: the band most stars have a mean magnitude in.
+  const counts = bands.map((b) => [b, rows.filter((r) => r.mean_mag?.[b] !== undefined && r.period_days).length]);
+  counts.sort((a, b) => b[1] - a[1]);
+  const band = counts[0]?.[0] ?? '';
+  return {
+    band,
+    points: rows.filter((r) => r.period_days > 0 && r.mean_mag?.[band] !== undefined)
+      .map((r) => ({ x: Math.log10(r.period_days), y: r.mean_mag[band], state: r.state })),
+  };
+}
+
+function renderPl() {
+  const { band, points } = plPoints();
+  const box = $('#pl-chart');
+  if (!points.length) { replace(box, el('p', { class: 'empty', text: 'No analysed star with a period yet.' })); return; }
+  const pick = (st) => points.filter((p) => p.state === st);
+  const clouds = [
+    { label: 'accepted', colour: '#1e6b34', size: 7, pts: pick('accepted') },
+    { label: 'rejected', colour: '#a3261b', size: 7, hollow: true, pts: pick('rejected') },
+    { label: 'needs a look', colour: '#c77700', size: 7, pts: pick('awaiting') },
+  ].filter((c) => c.pts.length).map((c) => ({ ...c, x: c.pts.map((p) => p.x), y: c.pts.map((p) => p.y) }));
+  const lines = [];
+  const fit = summary?.pl_fit ?? summary?.pl?.fit ?? summary?.fit ?? null;
+  const xs = points.map((p) => p.x);
+  const x0 = Math.min(...xs) - 0.05; const x1 = Math.max(...xs) + 0.05;
+  if (fit && Number.isFinite(fit.slope) && Number.isFinite(fit.intercept)) {
+    lines.push({ label: 'fitted relation', colour: '#14232e', width: 2, x: [x0, x1], y: [fit.intercept + fit.slope * x0, fit.intercept + fit.slope * x1] });
+  } else if (Array.isArray(fit?.x) && Array.isArray(fit?.y)) {
+    lines.push({ label: 'fitted relation', colour: '#14232e', width: 2, x: fit.x, y: fit.y });
+  }
+  scatter(box, {
+    xLabel: 'log₁₀ period (d)', yLabel: band ? `mean ${band} (mag)` : 'mean magnitude', clouds, lines, invertY: true, height: 320, xRange: [x0, x1],
+  });
+  box.dataset.points = String(points.length);
+}
