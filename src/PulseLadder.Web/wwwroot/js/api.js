@@ -69,6 +69,18 @@ export const CLASS_LABELS = {
   constant: 'Not variable',
 };
 
+/** Class codes from either our short codes or the enum names the analysis records carry. */
+const CLASS_ENUM = {
+  classical_cepheid_fundamental: 'dcep_f', classical_cepheid_first_overtone: 'dcep_1o', type_ii_cepheid: 't2cep',
+  r_r_lyrae_a_b: 'rrab', rr_lyrae_ab: 'rrab', r_r_lyrae_c: 'rrc', rr_lyrae_c: 'rrc', other_variable: 'other', not_variable: 'constant',
+};
+
+export function classCode(value) {
+  if (value === null || value === undefined || value === '') return null;
+  const v = String(value).toLowerCase();
+  return CLASS_LABELS[v] ? v : (CLASS_ENUM[v] ?? v);
+}
+
 /** Short class names for tables. */
 export const CLASS_SHORT = {
   unknown: '?', dcep_f: 'Cepheid F', dcep_1o: 'Cepheid 1O', t2cep: 'Type II Cep', rrab: 'RR Lyr ab', rrc: 'RR Lyr c',

@@ -1,5 +1,5 @@
 // Field page: star table (sort, filter, search), distance summary with its error budget, PL diagram.
-import { api, STATE_LABELS, CLASS_LABELS, CLASS_SHORT } from './api.js';
+import { api, STATE_LABELS, CLASS_LABELS, CLASS_SHORT, classCode } from './api.js';
 import { el, replace, $, num, pm, sig, kpc, queryInt } from './dom.js';
 import { initShell } from './shell.js';
 import { scatter } from './plots.js';
@@ -38,14 +38,25 @@ async function load() {
   if (field) {
     $('#field-counts').textContent = `${field.stars} stars · ${field.analysed} analysed · ${field.accepted} accepted · ${field.rejected} rejected · ${field.awaiting} need a look`;
   }
-  rows = stars;
-  summary = sum;
+  rows = stars.map((r) => ({ ...r, class: classCode(r.class) }));
+  summary = flattenSummary(sum);
   bands = [...new Set(rows.flatMap((r) => Object.keys(r.mean_mag ?? {})))].sort(bandOrder);
   fillClassFilter();
   renderTable();
   renderSummary();
   renderPl();
   updateExportLinks();
+}
+
+/** The summary may carry its details under `detail`; distance follows from the modulus when not given. */
+function flattenSummary(s) {
+  if (!s) return null;
+  const out = { ...(s.detail && typeof s.detail === 'object' ? s.detail : {}), ...s };
+  if (out.distance_pc === undefined && Number.isFinite(out.mu)) {
+    out.distance_pc = 10 ** (out.mu / 5 + 1);
+    if (Number.isFinite(out.mu_err)) out.distance_pc_err = out.distance_pc * Math.LN10 / 5 * out.mu_err;
+  }
+  return out;
 }
 
 const BAND_ORDER = ['U', 'B', 'V', 'R', 'I', 'J', 'H', 'Ks', 'K', 'u', 'g', 'r', 'i', 'z'];
@@ -191,9 +202,29 @@ function renderPl() {
     lines.push({ label: 'fitted relation', colour: '#14232e', width: 2, x: [x0, x1], y: [fit.intercept + fit.slope * x0, fit.intercept + fit.slope * x1] });
   } else if (Array.isArray(fit?.x) && Array.isArray(fit?.y)) {
     lines.push({ label: 'fitted relation', colour: '#14232e', width: 2, x: fit.x, y: fit.y });
+  } else {
+    // The summary carries no line: draw the least-squares line through the accepted stars, and say so.
+    const acc = pick('accepted');
+    const line = leastSquares(acc.map((p) => p.x), acc.map((p) => p.y));
+    if (line) {
+      lines.push({ label: 'line through accepted stars (fitted in the browser)', colour: '#14232e', width: 2, dash: [6, 4],
+        x: [x0, x1], y: [line.intercept + line.slope * x0, line.intercept + line.slope * x1] });
+    }
   }
   scatter(box, {
     xLabel: 'log₁₀ period (d)', yLabel: band ? `mean ${band} (mag)` : 'mean magnitude', clouds, lines, invertY: true, height: 320, xRange: [x0, x1],
   });
   box.dataset.points = String(points.length);
+}
+
+function leastSquares(xs, ys) {
+  const n = xs.length;
+  if (n < 2) return null;
+  const mx = xs.reduce((a, b) => a + b, 0) / n;
+  const my = ys.reduce((a, b) => a + b, 0) / n;
+  let sxx = 0; let sxy = 0;
+  for (let i = 0; i < n; i++) { sxx += (xs[i] - mx) ** 2; sxy += (xs[i] - mx) * (ys[i] - my); }
+  if (sxx <= 0) return null;
+  const slope = sxy / sxx;
+  return { slope, intercept: my - slope * mx };
 }

@@ -1,6 +1,6 @@
 // The star view shared by star.html and review.html: light curves, periodogram, refolding in the browser,
 // fits and residuals, cleaning, class, distance, decisions.
-import { api, STATE_LABELS, CLASS_LABELS, CLASS_SHORT } from './api.js';
+import { api, STATE_LABELS, CLASS_LABELS, CLASS_SHORT, classCode } from './api.js';
 import { el, replace, num, pm, sig, kpc, announce, sleep } from './dom.js';
 import { scatter, periodogram, setMarker, bandColour, shade } from './plots.js';
 import { phaseOf, sampleFit, fourier, fitFourier, rms } from './fold.js';
@@ -64,7 +64,7 @@ class StarView {
   async load() {
     replace(this.root, el('p', { class: 'muted', text: 'Loading star…' }));
     try {
-      this.detail = await api.star(this.starId);
+      this.detail = normalise(await api.star(this.starId));
     } catch (e) {
       replace(this.root, el('p', { class: 'notice notice-bad', role: 'alert', text: `Could not load star ${this.starId}: ${e.message}` }));
       return;
@@ -488,7 +488,7 @@ class StarView {
     for (let i = 0; i < 600 && this.alive; i++) {
       await sleep(i < 10 ? 500 : 1000);
       let d;
-      try { d = await api.star(this.starId); } catch { continue; }
+      try { d = normalise(await api.star(this.starId)); } catch { continue; }
       if (!d.star.pending && (d.analysis?.revision ?? null) !== oldRevision) {
         this.detail = d;
         this.render();
@@ -500,11 +500,41 @@ class StarView {
   }
 
   async refresh() {
-    this.detail = await api.star(this.starId);
+    this.detail = normalise(await api.star(this.starId));
     const keep = this.fold;
     this.render();
     if (keep && keep.source !== 'pipeline') this.foldAtPeriod(keep.period, keep.source);
   }
+}
+
+/**
+ * Brings the star detail into one shape: the analysis may come flat (docs/api.md) or as the stored analysis record
+ * under `result` (search.periodogram as {x, y}, class as an enum name).
+ */
+export function normalise(raw) {
+  const r = raw.result ?? {};
+  const search = r.search ?? null;
+  const curve = (c) => (c ? { frequency: c.frequency ?? c.x ?? [], power: c.power ?? c.y ?? [] } : null);
+  const cls = raw.class ?? r.class ?? null;
+  const d = {
+    ...raw,
+    position: raw.position ?? (raw.star?.ra_deg !== undefined ? { ra_deg: raw.star.ra_deg, dec_deg: raw.star.dec_deg } : null),
+    rejections: raw.rejections ?? r.rejections ?? [],
+    periodogram: curve(raw.periodogram ?? search?.periodogram),
+    window: curve(raw.window ?? search?.window),
+    peaks: (raw.peaks ?? search?.peaks ?? []).map((p) => ({ ...p, period_days: p.period_days ?? 1 / p.frequency })),
+    period: raw.period ?? r.period ?? null,
+    fits: raw.fits ?? r.fits ?? [],
+    observer_offsets: raw.observer_offsets ?? r.observer_offsets ?? [],
+    class: cls ? { ...cls, class: classCode(cls.class) } : null,
+    distance: raw.distance ?? r.distance ?? null,
+    decisions: raw.decisions ?? [],
+    outcome: raw.analysis?.outcome ?? r.outcome ?? null,
+    search_failure: search?.failure_reason ?? null,
+  };
+  d.declared_class = classCode(raw.declared_class);
+  if (d.star) d.star = { ...d.star, class: classCode(d.star.class) };
+  return d;
 }
 
 function formatTime(iso) {
