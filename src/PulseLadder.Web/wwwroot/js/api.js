@@ -51,6 +51,7 @@ export const api = {
   upload: (formData) => postForm('/uploads', formData),
   uploadStatus: (id) => get(`/uploads/${id}`),
   progress: () => get('/progress'),
+  timeScales: () => get('/time-scales'),
   exportUrl: (fieldId, format, acceptedOnly) =>
     `${BASE}/fields/${fieldId}/export?format=${format}${acceptedOnly ? '&accepted_only=true' : ''}`,
 };

@@ -1,6 +1,6 @@
 // Campaign page: the list of fields and the upload panel (check, report, store, watch the analysis).
 import { api, ApiError, TIME_SCALES } from './api.js';
-import { el, replace, $, num, pm, kpc, announce, sleep } from './dom.js';
+import { el, replace, $, pm, kpc, announce, sleep } from './dom.js';
 import { initShell } from './shell.js';
 
 initShell();
@@ -43,7 +43,16 @@ const files = []; // { file, role: 'photometry' | 'stars' }
 let checked = false;
 
 const scaleSelect = $('#time-scale');
-for (const [code, label] of TIME_SCALES) scaleSelect.appendChild(el('option', { value: code, text: `${label} — ${code}` }));
+async function loadTimeScales() {
+  // The server's list is the truth; the built-in names only label the codes it sends.
+  const labels = Object.fromEntries(TIME_SCALES);
+  let codes;
+  try { codes = await api.timeScales(); } catch { codes = null; }
+  if (!Array.isArray(codes) || !codes.length) codes = TIME_SCALES.map(([c]) => c);
+  const preferred = codes.includes('bjd_tdb') ? 'bjd_tdb' : codes[0];
+  replace(scaleSelect, codes.map((c) => el('option', { value: c, text: labels[c] ? `${labels[c]} — ${c}` : c, selected: c === preferred })));
+}
+loadTimeScales();
 
 function guessRole(name) {
   return /star|list|catalog|catalogue/i.test(name) && !/phot|lc|night/i.test(name) ? 'stars' : 'photometry';
@@ -118,7 +127,7 @@ function renderPreview(res) {
     el('strong', { text: 'Files look good. ' }),
     `${res.files.reduce((a, f) => a + (f.rows ?? 0), 0)} rows in ${res.files.length} file(s); nothing stored yet.`));
   for (const f of res.files) {
-    parts.push(el('h3', {}, el('span', { class: 'mono', text: f.file }), ` — ${f.kind === 'stars' ? 'star list' : f.kind}, ${f.rows} rows`,
+    parts.push(el('h3', {}, el('span', { class: 'mono', text: f.file }), ` — ${f.kind === 'stars' ? 'star list' : f.kind}${f.format ? ` (${f.format.replaceAll('_', ' ')})` : ''}, ${f.rows} rows`,
       f.duplicate ? el('span', { class: 'chip chip-awaiting', text: 'already uploaded' }) : null));
     parts.push(el('p', {}, 'Detected columns: ',
       (f.columns ?? []).map((c) => el('span', { class: 'chip chip-flag mono', text: c })), ' '));
