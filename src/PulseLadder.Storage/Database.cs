@@ -90,10 +90,12 @@ public sealed class Database
         var asm = typeof(Database).Assembly;
         string prefix = "PulseLadder.Storage.Migrations." + (Dialect == Dialect.Sqlite ? "sqlite" : "postgres") + ".";
         return asm.GetManifestResourceNames()
-            .Where(n => n.StartsWith(prefix, StringComparison.Ordinal) && n.EndsWith(".sql", StringComparison.Ordinal))
-            .Select(n =>
+            .Select(n => (Resource: n, Normal: n.Replace('/', '.').Replace('\\', '.')))
+            .Where(n => n.Normal.StartsWith(prefix, StringComparison.Ordinal) && n.Normal.EndsWith(".sql", StringComparison.Ordinal))
+            .Select(res =>
             {
-                string file = n[prefix.Length..];
+                string n = res.Resource;
+                string file = res.Normal[prefix.Length..];
                 int version = int.Parse(file.AsSpan(0, file.IndexOf('_')), System.Globalization.CultureInfo.InvariantCulture);
                 using var s = asm.GetManifestResourceStream(n)!;
                 using var r = new StreamReader(s);

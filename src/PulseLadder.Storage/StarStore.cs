@@ -69,6 +69,9 @@ public static class StarStore
             ORDER BY s.id
             """, new { pipelineVersion }).AsList();
 
+    public static long CountWithObservations(DbConnection c) =>
+        c.ExecuteScalar<long>("SELECT COUNT(*) FROM stars s WHERE EXISTS (SELECT 1 FROM observations o WHERE o.star_id = s.id)");
+
     public static void SetReview(DbConnection c, DbTransaction tx, long starId, string state, double? chosenPeriodDays, string? chosenClass, bool bumpRevision)
     {
         c.Execute("""

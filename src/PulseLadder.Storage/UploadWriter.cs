@@ -6,11 +6,8 @@ namespace PulseLadder.Storage;
 /// <summary>A validated star list file.</summary>
 public sealed record StarListFile(string FileName, string Sha256, IReadOnlyList<StarInfo> Stars);
 
-/// <summary>A validated photometry row, star by name.</summary>
-public readonly record struct PhotometryRow(string Star, int Line, double Time, string Band, double Mag, double MagErr, string Observer, string? Flag);
-
 /// <summary>A validated photometry file with its declared time scale and offset.</summary>
-public sealed record PhotometryFile(string FileName, string Sha256, TimeScale Scale, double TimeOffset, IReadOnlyList<PhotometryRow> Rows);
+public sealed record PhotometryFile(string FileName, string Sha256, TimeScale Scale, double TimeOffset, IReadOnlyList<Core.Ingest.PhotometryRow> Rows);
 
 /// <summary>What an upload stored.</summary>
 public sealed record UploadOutcome(long BatchId, int StarsAdded, int StarsChanged, long ObservationsAdded,
@@ -71,7 +68,8 @@ public static class UploadWriter
                 // The caller validated star names against the star list; a miss here is a bug.
                 long sid = ids.TryGetValue(r.Star, out var v) ? v : throw new InvalidOperationException($"Star '{r.Star}' is not in the star list.");
                 starIds.Add(sid);
-                return new ObservationToStore(sid, r.Line, r.Time, f.Scale, r.Band, r.Mag, r.MagErr, r.Observer, r.Flag);
+                var o = r.Observation;
+                return new ObservationToStore(sid, checked((int)r.Line), o.Time, o.Scale, o.Band, o.Mag, o.MagErr, o.Observer, o.Flag);
             }));
             observations += f.Rows.Count;
             // New photometry makes the star's current result stale.

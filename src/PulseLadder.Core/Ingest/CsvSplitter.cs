@@ -65,8 +65,11 @@ internal static class CsvSplitter
         }
     }
 
-    /// <summary>The separator of a header line: whichever of tab, semicolon, comma occurs most outside quotes; '\0' when none does.</summary>
-    public static char DetectSeparator(ReadOnlySpan<char> header)
+    /// <summary>
+    /// The separator of a header line: whichever of tab, semicolon, comma occurs most outside quotes; '\0' when none
+    /// does. <paramref name="unbalancedQuotes"/> is set when a quote is left open.
+    /// </summary>
+    public static char DetectSeparator(ReadOnlySpan<char> header, out bool unbalancedQuotes)
     {
         int tabs = 0, semis = 0, commas = 0;
         bool inQuotes = false;
@@ -80,6 +83,7 @@ internal static class CsvSplitter
                 else if (c == ',') commas++;
             }
         }
+        unbalancedQuotes = inQuotes;
         if (tabs == 0 && semis == 0 && commas == 0) return '\0';
         if (tabs >= semis && tabs >= commas) return '\t';
         return semis >= commas ? ';' : ',';

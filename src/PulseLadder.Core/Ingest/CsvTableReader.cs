@@ -49,7 +49,12 @@ internal sealed class CsvTableReader
             if (!IsSkippable(line)) break;
         }
         long headerLine = _lines.LineNumber;
-        _separator = CsvSplitter.DetectSeparator(line);
+        _separator = CsvSplitter.DetectSeparator(line, out bool unbalanced);
+        if (unbalanced)
+        {
+            _issues.Fatal(IngestIssueCode.BadQuoting, headerLine, null, IngestMessages.Quoting(SplitStatus.UnterminatedQuote));
+            return null;
+        }
         if (_separator == '\0')
         {
             _issues.Fatal(IngestIssueCode.UnknownSeparator, headerLine, null, IngestMessages.UnknownSeparator);
@@ -153,6 +158,6 @@ internal sealed class CsvTableReader
     internal static bool IsSkippable(ReadOnlySpan<char> line)
     {
         var t = line.TrimStart();
-        return t.IsEmpty || t[0] == '#' || t.Trim().IsEmpty;
+        return t.IsEmpty || t[0] == '#';
     }
 }

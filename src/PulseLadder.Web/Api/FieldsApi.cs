@@ -68,7 +68,7 @@ public static class FieldsApi
     public static Ok<ProgressDto> Progress(Database db)
     {
         using var c = db.Open();
-        long total = c.QuerySingleLong("SELECT COUNT(*) FROM stars s WHERE EXISTS (SELECT 1 FROM observations o WHERE o.star_id = s.id)");
+        long total = StarStore.CountWithObservations(c);
         long pending = StarStore.Pending(c, PipelineVersion.Current).Count;
         return TypedResults.Ok(new ProgressDto(total, total - pending, pending));
     }
@@ -79,7 +79,3 @@ public static class FieldsApi
 
 public sealed record FieldSummaryView(long FieldId, string Field, long NUsed, double? Mu, double? MuErr, string ComputedAt, System.Text.Json.JsonElement Detail);
 
-internal static class DbExtensions
-{
-    public static long QuerySingleLong(this System.Data.Common.DbConnection c, string sql) => Dapper.SqlMapper.ExecuteScalar<long>(c, sql);
-}

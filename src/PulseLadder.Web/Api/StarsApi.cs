@@ -1,3 +1,4 @@
+using PulseLadder.Core.Photometry;
 using Microsoft.AspNetCore.Http.HttpResults;
 using PulseLadder.Core.Pipeline;
 using PulseLadder.Core.TimeScales;

@@ -1,0 +1,428 @@
+using System.Globalization;
+using PulseLadder.Core.LightCurves;
+using PulseLadder.Core.Photometry;
+using PulseLadder.Core.Pipeline;
+using PulseLadder.Kernels;
+
+namespace PulseLadder.Core.PeriodSearch;
+
+/// <summary>The work behind <see cref="PeriodFinder"/>.</summary>
+internal static class PeriodSearchEngine
+{
+    internal sealed record Candidate(double Frequency, double Power)
+    {
+        public double ModelFrequency { get; set; }
+        public double? ModelChi2 { get; set; }
+    }
+
+    public static PeriodSearchResult Search(IReadOnlyList<LightCurvePoint> points, PulsatorClass cls, PeriodSearchSettings s)
+    {
+        var data = SearchData.Prepare(points);
+        var result = new PeriodSearchResult
+        {
+            BaselineDays = data.Baseline, PointsUsed = data.Count, Seed = s.Seed,
+            Bands = data.Bands.Select(b => b.Band).ToArray(), SkippedBands = data.SkippedBands,
+            Method = MethodName(data, 0),
+        };
+        if (data.Count < PeriodFinder.MinPoints) return result with { FailureReason = "too_few_points" };
+        if (FrequencyGrid.Build(data.Baseline, cls, s) is not { } grid) return result with { FailureReason = "baseline_too_short" };
+        int harmonics = Math.Clamp(s.RankingHarmonics ?? DefaultHarmonics(cls), 1, 8);
+        result = result with
+        {
+            MinFrequency = grid.F0, FrequencyStep = grid.Df, FrequencyCount = grid.Count, MaxFrequency = grid.FMax,
+            RankingHarmonics = harmonics, Method = MethodName(data, harmonics),
+        };
+        var notes = new List<string>();
+        if (grid.Capped) notes.Add("grid_capped");
+        foreach (var b in data.SkippedBands) notes.Add("band_too_few_points:" + b);
+
+        double chi0 = data.Bands.Sum(b => b.Chi2Mean);
+        if (!(chi0 > 0) || !double.IsFinite(chi0))
+            return result with { FailureReason = "no_significant_period", Notes = [.. notes, "no_variance"] };
+
+        var power = CombinedPower(data, grid);
+        var candidates = DistinctPeaks(power, grid, 1.0 / data.Baseline, Math.Max(s.Candidates, s.TopPeaks));
+        if (candidates.Count == 0)
+            return result with { FailureReason = "no_significant_period", Notes = [.. notes, "no_peak"], Periodogram = Thinned(power, grid) };
+
+        // Refine each candidate on the combined GLS: the grid step is 1/(n0 T), the peak is known to a small fraction of it.
+        var refined = new List<Candidate>(candidates.Count);
+        foreach (var k in candidates)
+        {
+            double fk = grid.At(k);
+            var (x, v) = Brent.Minimize(f => -CombinedPowerAt(data, f), fk - grid.Df, fk + grid.Df, grid.Df * 1e-6);
+            refined.Add(-v >= power[k] ? new Candidate(x, -v) : new Candidate(fk, power[k]));
+        }
+
+        // Re-rank with the multi-harmonic model + observer zero points.
+        var orders = data.Bands.Select(b => HarmonicFit.SupportedHarmonics(b, harmonics)).ToArray();
+        var refChi2 = data.Bands.Select(b => HarmonicFit.Fit(b, 0, 0) ?? b.Chi2Mean).ToArray();
+        double chiRef = refChi2.Sum();
+        bool modelUsable = orders.Any(o => o > 0) && chiRef > 0;
+        if (modelUsable)
+        {
+            foreach (var c in refined)
+            {
+                double h = 2 * grid.Df;
+                var (x, v) = Brent.Minimize(f => HarmonicFit.TotalChi2(data.Bands, orders, refChi2, f), c.Frequency - h, c.Frequency + h, grid.Df * 1e-4);
+                if (double.IsFinite(v)) { c.ModelFrequency = x; c.ModelChi2 = v; }
+            }
+        }
+        var ranked = refined
+            .OrderBy(c => c.ModelChi2 ?? double.PositiveInfinity)
+            .ThenByDescending(c => c.Power)
+            .ToList();
+
+        double tol = Math.Max(0.5 / data.Baseline, 2 * grid.Df);
+        var peaks = new List<PeriodPeak>();
+        var stronger = new List<double>();
+        foreach (var c in ranked.Take(Math.Max(1, s.TopPeaks)))
+        {
+            var (fap, method) = Fap(c.Power, data, grid);
+            var aliases = AliasLabels.For(c.Frequency, stronger, tol);
+            double? mp = c.ModelChi2 is { } mc ? Math.Clamp(1 - mc / chiRef, 0, 1) : null;
+            peaks.Add(new PeriodPeak(c.Frequency, c.Power, fap, method, aliases)
+            {
+                ModelPower = mp, ModelFrequency = c.ModelChi2 is null ? null : c.ModelFrequency,
+            });
+            stronger.Add(c.Frequency);
+        }
+
+        var offsets = modelUsable && ranked[0].ModelChi2 is not null
+            ? ObserverOffsets(data.Bands, orders, ranked[0].ModelFrequency)
+            : [];
+
+        double? bootFap = null;
+        if (s.BootstrapSamples > 0)
+        {
+            bootFap = BootstrapFap(data, grid, peaks[0].Power, s.BootstrapSamples, s.Seed);
+        }
+
+        var plot = Thinned(power, grid);
+        var wy = new double[plot.X.Length];
+        SpectralTools.Window(data.AllT, plot.X, wy);
+
+        double bestFap = bootFap ?? peaks[0].Fap ?? 1.0;
+        return result with
+        {
+            FailureReason = bestFap > s.MaxFalseAlarmProbability ? "no_significant_period" : null,
+            Peaks = peaks,
+            Periodogram = plot,
+            Window = new Curve(plot.X, wy),
+            ObserverOffsets = offsets,
+            BootstrapFap = bootFap,
+            BootstrapSamples = Math.Max(0, s.BootstrapSamples),
+            Notes = notes,
+        };
+    }
+
+    private static Curve Thinned(double[] power, FrequencyGrid grid)
+    {
+        var idx = SpectralTools.Thin(power);
+        var x = new double[idx.Length];
+        var y = new double[idx.Length];
+        for (int i = 0; i < idx.Length; i++) { x[i] = grid.At(idx[i]); y[i] = power[idx[i]]; }
+        return new Curve(x, y);
+    }
+
+    internal static int DefaultHarmonics(PulsatorClass cls) => cls switch
+    {
+        PulsatorClass.ClassicalCepheidFirstOvertone or PulsatorClass.RRLyraeC => 2,
+        _ => 3,
+    };
+
+    private static string MethodName(SearchData data, int harmonics)
+        => string.Create(CultureInfo.InvariantCulture,
+            $"gls[{Periodogram.GlsVariantName}] x{data.Bands.Count} band(s), chi2-weighted; ranked by {harmonics}-harmonic fit with observer offsets");
+
+    /// <summary>chi2_0-weighted multiband GLS power on the grid.</summary>
+    internal static double[] CombinedPower(SearchData data, FrequencyGrid grid)
+    {
+        var power = new double[grid.Count];
+        var tmp = data.Bands.Count > 1 ? new double[grid.Count] : power;
+        double chi0 = data.Bands.Sum(b => b.Chi2Mean);
+        foreach (var b in data.Bands)
+        {
+            if (!(b.Chi2Mean > 0)) continue;
+            Periodogram.Gls(b.T, b.Y, b.W, grid.F0, grid.Df, tmp);
+            if (ReferenceEquals(tmp, power)) break;
+            double wgt = b.Chi2Mean;
+            for (int k = 0; k < power.Length; k++) power[k] += wgt * tmp[k];
+        }
+        if (data.Bands.Count > 1)
+            for (int k = 0; k < power.Length; k++) power[k] /= chi0;
+        return power;
+    }
+
+    internal static double CombinedPowerAt(SearchData data, double f)
+    {
+        Span<double> one = stackalloc double[1];
+        double num = 0, den = 0;
+        foreach (var b in data.Bands)
+        {
+            den += b.Chi2Mean;
+            if (!(b.Chi2Mean > 0)) continue;
+            Periodogram.Gls(b.T, b.Y, b.W, f, 0, one);
+            num += b.Chi2Mean * one[0];
+        }
+        return den > 0 ? num / den : 0;
+    }
+
+    /// <summary>
+    /// Grid indices of the highest interior local maxima, each more than <paramref name="separation"/> from every
+    /// higher one kept. Maxima at the grid edges are not resolved peaks and are left out.
+    /// </summary>
+    internal static List<int> DistinctPeaks(double[] p, FrequencyGrid grid, double separation, int count)
+    {
+        var maxima = new List<int>();
+        for (int k = 1; k < p.Length - 1; k++)
+            if (p[k] > p[k - 1] && p[k] >= p[k + 1] && p[k] > 0) maxima.Add(k);
+        maxima.Sort((a, b) => p[b].CompareTo(p[a]));
+        var kept = new List<int>();
+        foreach (int k in maxima)
+        {
+            double f = grid.At(k);
+            bool distinct = true;
+            foreach (int j in kept)
+                if (Math.Abs(grid.At(j) - f) <= separation) { distinct = false; break; }
+            if (distinct) kept.Add(k);
+            if (kept.Count >= count) break;
+        }
+        return kept;
+    }
+
+    internal static (double? Fap, string Method) Fap(double z, SearchData data, FrequencyGrid grid)
+    {
+        if (data.Bands.Count == 1)
+            return (FalseAlarm.Baluev(z, data.Count, WeightedVariance(data.AllT, data.AllW), grid.FMax), FalseAlarm.BaluevMethod);
+        return (FalseAlarm.Multiband(z, data.Count, data.Bands.Count, grid.FMax, data.Baseline), FalseAlarm.MultibandMethod);
+    }
+
+    internal static double WeightedVariance(double[] t, double[] w)
+    {
+        double sw = 0, st = 0, stt = 0;
+        for (int i = 0; i < t.Length; i++) { sw += w[i]; st += w[i] * t[i]; }
+        if (!(sw > 0)) return 0;
+        double mean = st / sw;
+        for (int i = 0; i < t.Length; i++) { double d = t[i] - mean; stt += w[i] * d * d; }
+        return stt / sw;
+    }
+
+    internal static IReadOnlyList<ObserverOffset> ObserverOffsets(IReadOnlyList<BandSeries> bands, int[] orders, double f)
+    {
+        var list = new List<ObserverOffset>();
+        for (int bi = 0; bi < bands.Count; bi++)
+        {
+            var b = bands[bi];
+            int k = orders[bi], m = b.Observers.Length;
+            if (k <= 0) continue;
+            int p = HarmonicFit.ParamCount(k, m);
+            var x = new double[p];
+            var cov = new double[p * p];
+            if (HarmonicFit.Fit(b, f, k, x, cov) is not { } chi2) continue;
+            double scale = Math.Max(1, chi2 / Math.Max(1, b.Count - p));
+            list.Add(new ObserverOffset(b.Band, b.Observers[0], 0, 0, b.ObserverCounts[0]));
+            for (int j = 1; j < m; j++)
+            {
+                int idx = 1 + 2 * k + j - 1;
+                list.Add(new ObserverOffset(b.Band, b.Observers[j], x[idx], Math.Sqrt(cov[idx * p + idx] * scale), b.ObserverCounts[j]));
+            }
+        }
+        return list;
+    }
+
+    /// <summary>
+    /// Bootstrap FAP (SCIENCE.md 1.6): times kept, (magnitude, error) pairs resampled with replacement within each
+    /// band, maximum combined power over the same grid; FAP = (1 + #{max >= z}) / (1 + B). Seeded, so reproducible.
+    /// </summary>
+    internal static double BootstrapFap(SearchData data, FrequencyGrid grid, double z, int samples, int seed)
+    {
+        var rng = new Random(seed);
+        int above = 0;
+        for (int b = 0; b < samples; b++)
+        {
+            var bands = new List<BandSeries>(data.Bands.Count);
+            foreach (var s in data.Bands)
+            {
+                int n = s.Count;
+                var y = new double[n]; var w = new double[n];
+                for (int i = 0; i < n; i++) { int j = rng.Next(n); y[i] = s.Y[j]; w[i] = s.W[j]; }
+                double ws = 0, wy = 0;
+                for (int i = 0; i < n; i++) { ws += w[i]; wy += w[i] * y[i]; }
+                double ybar = wy / ws, chi0 = 0;
+                for (int i = 0; i < n; i++) { double d = y[i] - ybar; chi0 += w[i] * d * d; }
+                bands.Add(new BandSeries
+                {
+                    Band = s.Band, T = s.T, Y = y, W = w, Obs = s.Obs, Observers = s.Observers,
+                    ObserverCounts = s.ObserverCounts, Chi2Mean = chi0,
+                });
+            }
+            var sd = new SearchData
+            {
+                Bands = bands, ReferenceEpoch = data.ReferenceEpoch, Baseline = data.Baseline, UsablePoints = data.UsablePoints,
+                SkippedBands = data.SkippedBands, Count = data.Count, AllT = data.AllT, AllW = data.AllW,
+            };
+            var p = CombinedPower(sd, grid);
+            double max = 0;
+            foreach (double v in p) max = Math.Max(max, v);
+            if (max >= z) above++;
+        }
+        return (1.0 + above) / (1.0 + samples);
+    }
+
+    // ---------------------------------------------------------------------------------------------------------------
+
+    public static PeriodEstimate Refine(IReadOnlyList<LightCurvePoint> points, double frequency, PeriodSearchResult? search, PeriodSearchSettings s)
+    {
+        var data = SearchData.Prepare(points);
+        double T = data.Baseline;
+        PeriodEstimate Unrefined(string reason)
+        {
+            double f = frequency > 0 && double.IsFinite(frequency) ? frequency : 0;
+            double p = f > 0 ? 1 / f : 0;
+            double fErr = T > 0 ? 1 / T : f;
+            return new PeriodEstimate
+            {
+                FailureReason = reason, Method = "unrefined", Frequency = f, PeriodDays = p,
+                FrequencyErr = fErr, PeriodErrDays = f > 0 ? fErr / (f * f) : 0, ReferenceEpochBjd = data.ReferenceEpoch,
+            };
+        }
+        if (!(frequency > 0) || !double.IsFinite(frequency)) return Unrefined("invalid_frequency");
+        if (data.Count < PeriodFinder.MinPoints) return Unrefined("too_few_points");
+        if (!(T > 0)) return Unrefined("baseline_too_short");
+        if (!(data.Bands.Sum(b => b.Chi2Mean) > 0)) return Unrefined("no_variance");
+
+        // Local search around the given frequency: the caller may pass a reviewer's period that is not a grid peak.
+        int startK = Math.Max(1, Math.Min(3, s.MaxRefineHarmonics));
+        var startOrders = data.Bands.Select(b => HarmonicFit.SupportedHarmonics(b, startK)).ToArray();
+        if (startOrders.All(o => o <= 0)) return Unrefined("too_few_points");
+        var refChi2 = data.Bands.Select(b => HarmonicFit.Fit(b, 0, 0) ?? b.Chi2Mean).ToArray();
+        double half = 0.5 / T;
+        const int steps = 40;
+        double bestF = frequency, bestC = double.PositiveInfinity;
+        for (int i = 0; i <= steps; i++)
+        {
+            double f = frequency - half + 2 * half * i / steps;
+            if (f <= 0) continue;
+            double c = HarmonicFit.TotalChi2(data.Bands, startOrders, refChi2, f);
+            if (c < bestC) { bestC = c; bestF = f; }
+        }
+        double stepF = 2 * half / steps;
+        var (fb, _) = Brent.Minimize(f => HarmonicFit.TotalChi2(data.Bands, startOrders, refChi2, f),
+            Math.Max(bestF - stepF, 1e-12), bestF + stepF, stepF * 1e-6);
+
+        // Order per band by BIC at that frequency.
+        var orders = new int[data.Bands.Count];
+        for (int b = 0; b < data.Bands.Count; b++)
+        {
+            var band = data.Bands[b];
+            int kmax = HarmonicFit.SupportedHarmonics(band, Math.Clamp(s.MaxRefineHarmonics, 1, 12));
+            double bestBic = double.PositiveInfinity;
+            for (int k = 1; k <= kmax; k++)
+            {
+                if (HarmonicFit.Fit(band, fb, k) is not { } c2) continue;
+                double bic = c2 + HarmonicFit.ParamCount(k, band.Observers.Length) * Math.Log(band.Count);
+                if (bic < bestBic) { bestBic = bic; orders[b] = k; }
+            }
+        }
+        if (orders.All(o => o <= 0)) return Unrefined("too_few_points");
+
+        var sol = FourierRefiner.Fit(data.Bands, orders, fb);
+        // A converged solution must stay on the peak it started from.
+        if (sol is null || Math.Abs(sol.Frequency - fb) > half || !(sol.Frequency > 0))
+            return Unrefined("refinement_failed");
+
+        double freq = sol.Frequency, fErrV = sol.FrequencyErr;
+        var offsets = new List<ObserverOffset>();
+        for (int b = 0; b < data.Bands.Count; b++)
+        {
+            int k = orders[b];
+            if (k <= 0) continue;
+            var band = data.Bands[b];
+            offsets.Add(new ObserverOffset(band.Band, band.Observers[0], 0, 0, band.ObserverCounts[0]));
+            for (int j = 1; j < band.Observers.Length; j++)
+            {
+                int idx = 1 + 2 * k + j - 1;
+                offsets.Add(new ObserverOffset(band.Band, band.Observers[j], sol.BandParams[b][idx], sol.BandParamErr[b][idx], band.ObserverCounts[j]));
+            }
+        }
+
+        // PDM on offset-corrected magnitudes, candidates = this period and the search's other peaks.
+        var groups = new List<(double[] T, double[] Y)>();
+        for (int b = 0; b < data.Bands.Count; b++)
+        {
+            var band = data.Bands[b];
+            var y = (double[])band.Y.Clone();
+            int k = orders[b];
+            if (k > 0)
+                for (int i = 0; i < y.Length; i++)
+                    if (band.Obs[i] > 0) y[i] -= sol.BandParams[b][1 + 2 * k + band.Obs[i] - 1];
+            groups.Add((band.T, y));
+        }
+        double tFirst = data.AllT.Length > 0 ? data.AllT.Min() : 0;
+        int bins = Math.Clamp(s.PdmBins, 2, 100);
+        var pdm = new List<PdmCandidate> { new(1 / freq, SpectralTools.PdmTheta(groups, 1 / freq, bins, tFirst)) };
+        if (search?.Peaks is { } peaks)
+        {
+            foreach (var pk in peaks)
+            {
+                if (!(pk.Frequency > 0) || Math.Abs(pk.Frequency - freq) <= half) continue;
+                pdm.Add(new PdmCandidate(1 / pk.Frequency, SpectralTools.PdmTheta(groups, 1 / pk.Frequency, bins, tFirst)));
+            }
+        }
+        double? theta0 = pdm[0].Theta;
+        var best = pdm.Where(c => c.Theta is not null).OrderBy(c => c.Theta).FirstOrDefault();
+        bool disagrees = theta0 is { } th && best is not null && !ReferenceEquals(best, pdm[0])
+            && best.Theta < th * (1 - Math.Clamp(s.PdmClearMargin, 0, 0.99));
+
+        return new PeriodEstimate
+        {
+            Frequency = freq, FrequencyErr = fErrV, PeriodDays = 1 / freq, PeriodErrDays = fErrV / (freq * freq),
+            Method = "refined", PdmTheta = theta0, PdmPreferredPeriodDays = best?.PeriodDays, PdmDisagrees = disagrees,
+            Orders = data.Bands.Select((b, i) => new BandOrder(b.Band, orders[i], b.Count)).ToArray(),
+            Chi2Reduced = sol.Chi2Reduced, FrequencyErrMo99 = Mo99ForBestBand(data, orders, sol),
+            ReferenceEpochBjd = data.ReferenceEpoch, ObserverOffsets = offsets, PdmCandidates = pdm,
+        };
+    }
+
+    /// <summary>Montgomery &amp; O'Donoghue (1999): sigma_f = sqrt(6/N) sigma_m / (pi T A).</summary>
+    internal static double Mo99FrequencyError(int n, double sigmaM, double baseline, double amplitude)
+        => Math.Sqrt(6.0 / n) * sigmaM / (Math.PI * baseline * amplitude);
+
+    private static double? Mo99ForBestBand(SearchData data, int[] orders, FourierSolution sol)
+    {
+        double? best = null;
+        double bestInfo = 0;
+        Span<double> rowBuf = stackalloc double[64];
+        for (int b = 0; b < data.Bands.Count; b++)
+        {
+            if (orders[b] <= 0) continue;
+            var band = data.Bands[b];
+            var x = sol.BandParams[b];
+            double amp = Math.Sqrt(x[1] * x[1] + x[2] * x[2]);
+            // rms residual of the fitted model (unweighted, per degree of freedom of the linear fit).
+            int k = orders[b], m = band.Observers.Length, p = x.Length;
+            Span<double> row = p <= 64 ? rowBuf[..p] : new double[p];
+            double ss = 0;
+            for (int i = 0; i < band.Count; i++)
+            {
+                HarmonicFit.Row(sol.Frequency, band.T[i], band.Obs[i], k, m, row);
+                double mdl = 0;
+                for (int j = 0; j < p; j++) mdl += row[j] * x[j];
+                double d = band.Y[i] - mdl;
+                ss += d * d;
+            }
+            if (band.Count <= p) continue;
+            double sigma = Math.Sqrt(ss / (band.Count - p));
+            double tb = band.T.Max() - band.T.Min();
+            if (!(amp > 0) || !(sigma > 0) || !(tb > 0)) continue;
+            double info = band.Count * amp * amp / (sigma * sigma);
+            if (info > bestInfo)
+            {
+                bestInfo = info;
+                best = Mo99FrequencyError(band.Count, sigma, tb, amp);
+            }
+        }
+        return best is { } v && double.IsFinite(v) ? v : null;
+    }
+}

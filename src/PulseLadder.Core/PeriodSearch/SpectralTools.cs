@@ -1,0 +1,106 @@
+namespace PulseLadder.Core.PeriodSearch;
+
+/// <summary>Spectral window, plot thinning and phase dispersion minimisation.</summary>
+internal static class SpectralTools
+{
+    /// <summary>Buckets used by <see cref="Thin"/>; two points each, so plots stay at or below 2 x this.</summary>
+    public const int PlotBuckets = 1000;
+
+    /// <summary>
+    /// Spectral window of the sampling (Deeming 1975): W(f) = |(1/N) sum_k exp(-2 pi i f t_k)|^2, W(0) = 1.
+    /// Unweighted: it describes where the observations are, not how good they are.
+    /// </summary>
+    public static void Window(ReadOnlySpan<double> t, ReadOnlySpan<double> freqs, Span<double> result)
+    {
+        int n = t.Length;
+        if (n == 0) { result.Clear(); return; }
+        for (int j = 0; j < freqs.Length; j++)
+        {
+            double w = 2 * Math.PI * freqs[j], re = 0, im = 0;
+            for (int k = 0; k < n; k++)
+            {
+                (double s, double c) = Math.SinCos(w * t[k]);
+                re += c; im -= s;
+            }
+            re /= n; im /= n;
+            result[j] = re * re + im * im;
+        }
+    }
+
+    /// <summary>
+    /// Indices of a min/max decimation of <paramref name="y"/>: the series is cut into <see cref="PlotBuckets"/>
+    /// buckets and the lowest and highest point of each are kept in order, so every peak that is the highest of its
+    /// bucket survives and the plot shows the true envelope. Short series are returned whole.
+    /// </summary>
+    public static int[] Thin(ReadOnlySpan<double> y)
+    {
+        int n = y.Length;
+        if (n <= 2 * PlotBuckets)
+        {
+            var all = new int[n];
+            for (int i = 0; i < n; i++) all[i] = i;
+            return all;
+        }
+        var keep = new List<int>(2 * PlotBuckets);
+        for (int b = 0; b < PlotBuckets; b++)
+        {
+            int lo = (int)((long)b * n / PlotBuckets), hi = (int)((long)(b + 1) * n / PlotBuckets);
+            if (hi <= lo) continue;
+            int iMin = lo, iMax = lo;
+            for (int i = lo + 1; i < hi; i++)
+            {
+                if (y[i] < y[iMin]) iMin = i;
+                if (y[i] > y[iMax]) iMax = i;
+            }
+            if (iMin == iMax) keep.Add(iMin);
+            else { keep.Add(Math.Min(iMin, iMax)); keep.Add(Math.Max(iMin, iMax)); }
+        }
+        return keep.ToArray();
+    }
+
+    /// <summary>
+    /// Stellingwerf (1978) theta = s^2 / sigma^2 with <paramref name="bins"/> equal phase bins and one cover, phase
+    /// zero at <paramref name="phaseZero"/>. Several groups (bands) are pooled: each group has its own mean and its
+    /// own bins, within-bin and total sums of squares are added over groups and their degrees of freedom likewise
+    /// (one group gives Stellingwerf's definition exactly). Unweighted, as in the original. Null when undefined
+    /// (no variance, or no bin with two points).
+    /// </summary>
+    public static double? PdmTheta(IReadOnlyList<(double[] T, double[] Y)> groups, double period, int bins, double phaseZero)
+    {
+        if (!(period > 0) || bins < 2) return null;
+        Span<double> sum = bins <= 256 ? stackalloc double[bins] : new double[bins];
+        Span<double> sum2 = bins <= 256 ? stackalloc double[bins] : new double[bins];
+        Span<int> cnt = bins <= 256 ? stackalloc int[bins] : new int[bins];
+        double within = 0, total = 0;
+        int withinDof = 0, totalDof = 0;
+        foreach (var (t, y) in groups)
+        {
+            int n = t.Length;
+            if (n < 2) continue;
+            sum.Clear(); sum2.Clear(); cnt.Clear();
+            double mean = 0;
+            for (int i = 0; i < n; i++) mean += y[i];
+            mean /= n;
+            for (int i = 0; i < n; i++)
+            {
+                double d = y[i] - mean;
+                total += d * d;
+                double ph = (t[i] - phaseZero) / period;
+                ph -= Math.Floor(ph);
+                int b = Math.Min(bins - 1, (int)(ph * bins));
+                // Sums about the group mean keep the bin variances free of cancellation.
+                sum[b] += d; sum2[b] += d * d; cnt[b]++;
+            }
+            totalDof += n - 1;
+            for (int b = 0; b < bins; b++)
+            {
+                if (cnt[b] < 2) continue;
+                within += sum2[b] - sum[b] * sum[b] / cnt[b];
+                withinDof += cnt[b] - 1;
+            }
+        }
+        if (withinDof <= 0 || totalDof <= 0 || !(total > 0)) return null;
+        double theta = (within / withinDof) / (total / totalDof);
+        return double.IsFinite(theta) ? theta : null;
+    }
+}
