@@ -51,7 +51,9 @@ async function load() {
 /** The summary may carry its details under `detail`; distance follows from the modulus when not given. */
 function flattenSummary(s) {
   if (!s) return null;
-  const out = { ...(s.detail && typeof s.detail === 'object' ? s.detail : {}), ...s };
+  // The detail is the full computation; its values win over the row's copies.
+  const out = { ...s, ...(s.detail && typeof s.detail === 'object' ? s.detail : {}) };
+  if (out.n_used === undefined) out.n_used = out.stars_used;
   if (out.distance_pc === undefined && Number.isFinite(out.mu)) {
     out.distance_pc = 10 ** (out.mu / 5 + 1);
     if (Number.isFinite(out.mu_err)) out.distance_pc_err = out.distance_pc * Math.LN10 / 5 * out.mu_err;
@@ -148,30 +150,58 @@ function renderSummary() {
     replace(box, el('p', { class: 'muted', text: 'No accepted star yet, so no field distance. Accept stars on their pages or in the review queue.' }));
     return;
   }
-  const budget = s.error_budget ?? s.budget ?? null;
+  if (s.failure_reason) {
+    replace(box, el('p', { class: 'notice notice-warn', text: `No field distance: ${s.failure_reason.replaceAll('_', ' ')}` }));
+    return;
+  }
+  const clipped = s.stars_rejected ?? s.n_clipped;
+  // Error budget: the summary's own terms when it lists them, else its statistical / systematic split.
+  const budget = s.error_budget ?? s.budget ?? (Number.isFinite(s.mu_err_stat) ? {
+    statistical: s.mu_err_stat,
+    systematic: s.mu_err_sys,
+  } : null);
   replace(box,
     el('dl', { class: 'kv', id: 'summary-values' },
       el('dt', { text: 'Distance modulus' }), el('dd', { id: 'summary-mu', text: `${pm(s.mu, s.mu_err, 3)} mag` }),
       el('dt', { text: 'Distance' }), el('dd', { text: kpc(s.distance_pc, s.distance_pc_err) }),
-      el('dt', { text: 'Stars used' }), el('dd', { id: 'summary-n', text: String(s.n_used ?? '–') }),
-      s.n_clipped !== undefined ? [el('dt', { text: 'Clipped as outliers' }), el('dd', { text: String(s.n_clipped) })] : null,
-      s.relation_id ? [el('dt', { text: 'Relation' }), el('dd', { text: s.relation_id })] : null),
-    budget ? budgetTable(budget, s.mu_err) : null);
+      el('dt', { text: 'Stars used' }), el('dd', { id: 'summary-n', text: String(s.n_used ?? s.stars_used ?? '–') }),
+      clipped !== undefined ? [el('dt', { text: 'Clipped as outliers' }), el('dd', { text: String(clipped) })] : null,
+      s.relation_id ? [el('dt', { text: 'Relation' }), el('dd', { text: [s.relation_id, s.band].filter(Boolean).join(', ') })] : null,
+      Number.isFinite(s.chi_square_red) ? [el('dt', { text: 'χ² per degree' }), el('dd', { text: num(s.chi_square_red, 2) })] : null,
+      Number.isFinite(s.sigma_int_used) ? [el('dt', { text: 'Intrinsic scatter' }), el('dd', { text: `${num(s.sigma_int_used, 3)} mag${s.sigma_int_inflated ? ' (inflated)' : ''}` })] : null,
+      Number.isFinite(s.slope_difference_sigma) ? [el('dt', { text: 'Free slope vs calibrated' }), el('dd', { text: `${num(s.slope_difference_sigma, 1)} σ` })] : null),
+    budget ? budgetTable(budget, s.mu_err) : null,
+    (s.flags ?? []).length ? el('p', {}, s.flags.map((f) => el('span', { class: 'chip chip-flag', text: f }))) : null);
 }
 
 // ---------- PL diagram ----------
+/**
+ * Points of the PL diagram. With the field summary's own points (accepted stars: log P against the
+ * extinction-corrected magnitude) the other stars are placed from their own distance modulus on the same
+ * relation: m0 = mu_star + (zero point - mu_field) + slope (log P - p0), metallicity term left out.
+ */
 function plPoints() {
   const pts = summary?.pl_points ?? summary?.pl?.points ?? summary?.points ?? null;
   if (Array.isArray(pts) && pts.length) {
-    const byId = new Map(rows.map((r) => [r.star_id, r]));
-    return {
-      band: summary.pl_band ?? summary.pl?.band ?? summary.band ?? '',
-      points: pts.map((p) => ({
-        x: p.log_period ?? p.log_p ?? (p.period_days ? Math.log10(p.period_days) : null),
-        y: p.mag ?? p.magnitude ?? p.m ?? null,
-        state: p.state ?? byId.get(p.star_id)?.state ?? 'awaiting',
-      })).filter((p) => p.x !== null && p.y !== null),
-    };
+    const byName = new Map(rows.map((r) => [r.star, r]));
+    const points = pts.map((p) => ({
+      x: p.log_p ?? p.log_period ?? (p.period_days ? Math.log10(p.period_days) : null),
+      y: p.mag0 ?? p.mag ?? p.magnitude ?? null,
+      state: p.kept === false ? 'clipped' : (p.state ?? byName.get(p.star)?.state ?? 'accepted'),
+      star: p.star,
+    })).filter((p) => p.x !== null && p.y !== null);
+    const line = summary.fixed_slope_fit;
+    if (line && Number.isFinite(summary.mu)) {
+      const inSummary = new Set(points.map((p) => p.star));
+      for (const r of rows) {
+        if (inSummary.has(r.star) || !(r.period_days > 0) || !Number.isFinite(r.distance_modulus)) continue;
+        if (summary.relation_id && r.relation_id && r.relation_id !== summary.relation_id) continue;
+        const x = Math.log10(r.period_days);
+        points.push({ x, y: r.distance_modulus + (line.zero_point - summary.mu) + line.slope * (x - line.p0), state: r.state, star: r.star });
+      }
+    }
+    const band = summary.pl_band ?? summary.pl?.band ?? summary.band ?? '';
+    return { band, corrected: true, points };
   }
   // Fall back to the table: the band most stars have a mean magnitude in.
   const counts = bands.map((b) => [b, rows.filter((r) => r.mean_mag?.[b] !== undefined && r.period_days).length]);
@@ -179,29 +209,42 @@ function plPoints() {
   const band = counts[0]?.[0] ?? '';
   return {
     band,
+    corrected: false,
     points: rows.filter((r) => r.period_days > 0 && r.mean_mag?.[band] !== undefined)
-      .map((r) => ({ x: Math.log10(r.period_days), y: r.mean_mag[band], state: r.state })),
+      .map((r) => ({ x: Math.log10(r.period_days), y: r.mean_mag[band], state: r.state, star: r.star })),
   };
 }
 
+function lineOf(fit, x0, x1, label, dash) {
+  if (!fit || !Number.isFinite(fit.slope)) return null;
+  const zp = fit.zero_point ?? fit.intercept;
+  const p0 = fit.p0 ?? 0;
+  if (!Number.isFinite(zp)) return null;
+  return { label, colour: dash ? '#5b6573' : '#14232e', width: 2, dash, x: [x0, x1], y: [zp + fit.slope * (x0 - p0), zp + fit.slope * (x1 - p0)] };
+}
+
 function renderPl() {
-  const { band, points } = plPoints();
+  const { band, corrected, points } = plPoints();
   const box = $('#pl-chart');
   if (!points.length) { replace(box, el('p', { class: 'empty', text: 'No analysed star with a period yet.' })); return; }
   const pick = (st) => points.filter((p) => p.state === st);
   const clouds = [
     { label: 'accepted', colour: '#1e6b34', size: 7, pts: pick('accepted') },
+    { label: 'accepted, clipped as outlier', colour: '#1e6b34', size: 7, hollow: true, pts: pick('clipped') },
     { label: 'rejected', colour: '#a3261b', size: 7, hollow: true, pts: pick('rejected') },
     { label: 'needs a look', colour: '#c77700', size: 7, pts: pick('awaiting') },
   ].filter((c) => c.pts.length).map((c) => ({ ...c, x: c.pts.map((p) => p.x), y: c.pts.map((p) => p.y) }));
-  const lines = [];
-  const fit = summary?.pl_fit ?? summary?.pl?.fit ?? summary?.fit ?? null;
   const xs = points.map((p) => p.x);
   const x0 = Math.min(...xs) - 0.05; const x1 = Math.max(...xs) + 0.05;
-  if (fit && Number.isFinite(fit.slope) && Number.isFinite(fit.intercept)) {
-    lines.push({ label: 'fitted relation', colour: '#14232e', width: 2, x: [x0, x1], y: [fit.intercept + fit.slope * x0, fit.intercept + fit.slope * x1] });
-  } else if (Array.isArray(fit?.x) && Array.isArray(fit?.y)) {
-    lines.push({ label: 'fitted relation', colour: '#14232e', width: 2, x: fit.x, y: fit.y });
+  const lines = [];
+  const own = summary?.pl_fit ?? summary?.pl?.fit ?? summary?.fit ?? null;
+  const fixed = lineOf(summary?.fixed_slope_fit ?? own, x0, x1, 'field fit (calibrated slope)', undefined);
+  if (fixed) {
+    lines.push(fixed);
+    const free = lineOf(summary?.free_slope_fit, x0, x1, 'free-slope fit (diagnostic)', [6, 4]);
+    if (free) lines.push(free);
+  } else if (Array.isArray(own?.x) && Array.isArray(own?.y)) {
+    lines.push({ label: 'fitted relation', colour: '#14232e', width: 2, x: own.x, y: own.y });
   } else {
     // The summary carries no line: draw the least-squares line through the accepted stars, and say so.
     const acc = pick('accepted');
@@ -211,9 +254,8 @@ function renderPl() {
         x: [x0, x1], y: [line.intercept + line.slope * x0, line.intercept + line.slope * x1] });
     }
   }
-  scatter(box, {
-    xLabel: 'log₁₀ period (d)', yLabel: band ? `mean ${band} (mag)` : 'mean magnitude', clouds, lines, invertY: true, height: 320, xRange: [x0, x1],
-  });
+  const yLabel = corrected ? `${band || 'magnitude'}, extinction-corrected (mag)` : (band ? `mean ${band} (mag)` : 'mean magnitude');
+  scatter(box, { xLabel: 'log₁₀ period (d)', yLabel, clouds, lines, invertY: true, height: 320, xRange: [x0, x1] });
   box.dataset.points = String(points.length);
 }
 
