@@ -1,7 +1,7 @@
 // Campaign page: the list of fields and the upload panel (check, report, store, watch the analysis).
 import { api, ApiError, TIME_SCALES } from './api.js';
 import { el, replace, $, pm, kpc, announce, sleep } from './dom.js';
-import { initShell } from './shell.js';
+import { initShell, refreshProgress } from './shell.js';
 
 initShell();
 
@@ -194,7 +194,7 @@ async function watch(uploadId) {
     fill.style.width = `${pct}%`;
     bar.setAttribute('aria-valuenow', String(pct));
     $('#progress-text').textContent = `${st.stars_done} of ${st.stars_total} stars analysed (${pct}%)`;
-    if (st.stars_done !== lastDone) { lastDone = st.stars_done; loadFields(); }
+    if (st.stars_done !== lastDone) { lastDone = st.stars_done; loadFields(); refreshProgress(); }
     if (st.state === 'done') {
       $('#progress-label').textContent = `Upload ${uploadId}: analysis complete`;
       box.dataset.state = 'done';

@@ -102,7 +102,7 @@ class StarView {
         el('span', { class: 'chip chip-flag', id: 'star-class', text: CLASS_LABELS[d.class?.class ?? s.class] ?? (d.class?.class ?? s.class ?? 'unclassified') }),
         el('span', { class: 'muted' }, 'field ', el('a', { href: this.fieldHref(), text: s.field ?? '' })),
         d.position ? el('span', { class: 'muted mono', text: `RA ${num(d.position.ra_deg, 5)}°  Dec ${num(d.position.dec_deg, 5)}°` }) : null,
-        (s.flags ?? []).map((f) => el('span', { class: 'chip chip-flag', text: f }))),
+        (s.flags ?? []).map((f) => el('span', { class: 'chip chip-flag', title: f, text: f.replaceAll('_', ' ') }))),
       this.actionsBar(),
       el('div', { id: 'pending-banner', class: 'banner', hidden: !s.pending, role: 'status', text: 'Being re-analysed through the queue… this view refreshes when the new analysis arrives.' }));
 
@@ -196,7 +196,7 @@ class StarView {
       el('td', { class: 'num', text: sig(p.frequency, 6) }),
       el('td', { class: 'num', text: num(p.power, 3) }),
       el('td', { class: 'num', text: p.fap === null || p.fap === undefined ? '–' : sig(p.fap, 2), title: p.fap_method ?? null }),
-      el('td', { text: (p.aliases ?? []).join('; ') || '–' }))))));
+      el('td', { text: (p.aliases ?? []).map((a) => aliasText(a, peaks)).join('; ') || '–', title: (p.aliases ?? []).join('; ') || null }))))));
   }
 
   classCard() {
@@ -241,11 +241,11 @@ class StarView {
       box.appendChild(el('table', { style: 'margin-top:.5rem', 'aria-label': 'Distance by route' },
         el('thead', {}, el('tr', {}, ['Route', 'M', 'm', 'A', 'μ'].map((h) => el('th', { scope: 'col', text: h })))),
         el('tbody', {}, routes.map((r) => el('tr', {},
-          el('td', { text: `${r.band} · ${r.relation_id}` }), el('td', { class: 'num', text: num(r.absolute_mag, 2) }),
+          el('td', {}, el('strong', { text: r.band }), el('div', { class: 'muted small', text: r.relation_id })), el('td', { class: 'num', text: num(r.absolute_mag, 2) }),
           el('td', { class: 'num', text: num(r.apparent_mag, 2) }), el('td', { class: 'num', text: num(r.extinction, 2) }),
           el('td', { class: 'num', text: pm(r.mu, r.mu_err, 2) }))))));
     }
-    for (const f of d.flags ?? []) box.appendChild(el('span', { class: 'chip chip-flag', text: f }));
+    for (const f of d.flags ?? []) box.appendChild(el('span', { class: 'chip chip-flag', title: f, text: f.replaceAll('_', ' ') }));
     return box;
   }
 
@@ -259,10 +259,13 @@ class StarView {
     box.appendChild(el('ul', { class: 'reasons', id: 'rejection-reasons' }, [...byReason].map(([reason, n]) =>
       el('li', {}, el('strong', { text: `${n} × ${reason.replaceAll('_', ' ')}` }), ` — ${REASONS[reason] ?? 'see the detail column'}`))));
     box.appendChild(el('div', { class: 'table-wrap', style: 'max-height:220px' }, el('table', { class: 'preview-table', 'aria-label': 'Points set aside' },
-      el('thead', {}, el('tr', {}, ['Reason', 'Band', 'BJD', 'Mag', 'Detail'].map((h) => el('th', { scope: 'col', text: h })))),
-      el('tbody', {}, rej.slice(0, 300).map((r) => el('tr', {},
-        el('td', { text: (r.reason ?? '').replaceAll('_', ' '), title: r.stage ? `stage: ${r.stage}` : null }), el('td', { text: r.band ?? '' }),
-        el('td', { class: 'num', text: num(r.time, 3) }), el('td', { class: 'num', text: num(r.mag, 3) }), el('td', { text: r.detail ?? '' })))))));
+      el('thead', {}, el('tr', {}, ['Reason', 'Band', 'BJD', 'Mag'].map((h) => el('th', { scope: 'col', text: h })))),
+      el('tbody', {}, rej.slice(0, 300).map((r) => [
+        el('tr', { class: 'no-line' },
+          el('td', { text: (r.reason ?? '').replaceAll('_', ' '), title: r.stage ? `stage: ${r.stage}` : null }), el('td', { text: r.band ?? '' }),
+          el('td', { class: 'num', text: num(r.time, 3) }), el('td', { class: 'num', text: num(r.mag, 3) })),
+        el('tr', {}, el('td', { colspan: '4', class: 'muted small', text: r.detail ?? '' })),
+      ])))));
     return box;
   }
 
@@ -535,6 +538,21 @@ export function normalise(raw) {
   d.declared_class = classCode(raw.declared_class);
   if (d.star) d.star = { ...d.star, class: classCode(d.star.class) };
   return d;
+}
+
+const ALIAS_KINDS = {
+  '1sd_alias': 'sidereal-day alias', '2sd_alias': 'half-sidereal-day alias', '1d_alias': 'one-day alias',
+  '2d_alias': 'half-day alias', annual_alias: 'yearly alias', lunar_alias: 'monthly alias',
+};
+
+/** "1d_alias_of:0.18620" -> "one-day alias of #1" (the peak with that frequency), else a readable fallback. */
+export function aliasText(code, peaks) {
+  const m = /^(.+)_of:([-+0-9.eE]+)$/.exec(code);
+  if (!m) return code.replaceAll('_', ' ');
+  const f = Number(m[2]);
+  const kind = ALIAS_KINDS[m[1]] ?? m[1].replaceAll('_', ' ');
+  const idx = peaks.findIndex((p) => Math.abs(p.frequency - f) <= 1e-5 + 1e-6 * f);
+  return idx >= 0 ? `${kind} of #${idx + 1}` : `${kind} of ${sig(f, 6)} d⁻¹`;
 }
 
 function formatTime(iso) {
