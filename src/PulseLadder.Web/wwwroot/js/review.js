@@ -32,11 +32,15 @@ async function show(row) {
   host.dataset.starId = String(row.star_id);
 }
 
+let seq = 0;
+
 async function next() {
+  const mine = ++seq;
   try {
     const after = current?.star_id ?? null;
-    if (current) visited.push(current);
     let row = await api.next(after);
+    if (mine !== seq) return; // a later key press won
+    if (current) visited.push(current);
     // The server's order wraps around; stop when it hands back the star we just left.
     if (row && after !== null && row.star_id === after) row = null;
     await show(row);

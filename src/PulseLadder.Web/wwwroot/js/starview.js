@@ -66,9 +66,11 @@ class StarView {
     try {
       this.detail = normalise(await api.star(this.starId));
     } catch (e) {
-      replace(this.root, el('p', { class: 'notice notice-bad', role: 'alert', text: `Could not load star ${this.starId}: ${e.message}` }));
+      if (this.alive) replace(this.root, el('p', { class: 'notice notice-bad', role: 'alert', text: `Could not load star ${this.starId}: ${e.message}` }));
       return;
     }
+    // The review queue may have moved on while this star was loading: never draw into a view that was left.
+    if (!this.alive) return;
     this.render();
     if (this.detail.star.pending) this.waitForAnalysis(this.detail.analysis?.revision ?? null);
   }
@@ -492,6 +494,7 @@ class StarView {
       await sleep(i < 10 ? 500 : 1000);
       let d;
       try { d = normalise(await api.star(this.starId)); } catch { continue; }
+      if (!this.alive) return;
       if (!d.star.pending && (d.analysis?.revision ?? null) !== oldRevision) {
         this.detail = d;
         this.render();
@@ -503,7 +506,9 @@ class StarView {
   }
 
   async refresh() {
-    this.detail = normalise(await api.star(this.starId));
+    const d = normalise(await api.star(this.starId));
+    if (!this.alive) return;
+    this.detail = d;
     const keep = this.fold;
     this.render();
     if (keep && keep.source !== 'pipeline') this.foldAtPeriod(keep.period, keep.source);
