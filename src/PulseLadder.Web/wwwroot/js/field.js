@@ -131,7 +131,7 @@ function renderTable() {
     bands.map((b) => el('td', { class: 'num', text: num(r.mean_mag?.[b] ?? null, 3) })),
     el('td', { class: 'num', text: pm(r.distance_modulus, r.distance_modulus_err, 2) }),
     el('td', { class: 'num', text: kpc(r.distance_pc, r.distance_pc_err) }),
-    el('td', {}, (r.flags ?? []).map((f) => el('span', { class: 'chip chip-flag', text: f }))))));
+    el('td', { class: 'flags' }, (r.flags ?? []).map((f) => el('span', { class: 'chip chip-flag', title: f, text: f.replaceAll('_', ' ') }))))));
 }
 
 export function stateChip(r) {
