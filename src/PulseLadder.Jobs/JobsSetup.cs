@@ -42,7 +42,8 @@ public static class JobsSetup
             services.AddHangfireServer(o =>
             {
                 o.WorkerCount = options.EffectiveWorkers;
-                o.Queues = ["analysis", "summary", "default"];
+                // Summaries are short and follow a person's decision: serve them before the bulk of star analyses.
+                o.Queues = ["summary", "analysis", "default"];
                 o.SchedulePollingInterval = TimeSpan.FromSeconds(1);
             });
         }

@@ -15,6 +15,7 @@ internal static unsafe class GlsBlocks256
 
     /// <summary>Accumulates the six sums for 4 frequencies into <paramref name="sums"/>[6 j + q].</summary>
     [SkipLocalsInit]
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public static void Block(double* up, double* u, double* vp, double* v, double* k2, double* yv, double* iw, int np, double* sums)
     {
         Vector256<double> c0 = default, s0 = default, yc0 = default, ys0 = default, cc0 = default, cs0 = default;
@@ -70,6 +71,7 @@ internal static unsafe class GlsBlocks256
     /// Starts a segment: the Chebyshev pair is taken from the accurately rotated state z = (zu, zv) and, when
     /// <paramref name="advance"/>, z is rotated by the segment step (cS, sS) for the next segment.
     /// </summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public static void SegmentStart(double* zu, double* zv, double* cd, double* sd, double* cS, double* sS,
         double* up, double* u, double* vp, double* v, int np, bool advance)
     {

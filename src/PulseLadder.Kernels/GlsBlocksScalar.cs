@@ -1,3 +1,4 @@
+using System.Runtime.CompilerServices;
 namespace PulseLadder.Kernels;
 
 /// <summary>Frequencies evaluated per pass over the points (register blocking), shared by all variants.</summary>
@@ -9,6 +10,7 @@ internal static class GlsBlocks
 /// <summary>Portable scalar twin of <see cref="GlsBlocks512"/>: same recurrence, same blocking, one point at a time.</summary>
 internal static unsafe class GlsBlocksScalar
 {
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public static void Block(double* up, double* u, double* vp, double* v, double* k2, double* yv, double* iw, int np, double* sums)
     {
         double c0 = 0, s0 = 0, yc0 = 0, ys0 = 0, cc0 = 0, cs0 = 0;
@@ -36,6 +38,7 @@ internal static unsafe class GlsBlocksScalar
         p[18] = c3; p[19] = s3; p[20] = yc3; p[21] = ys3; p[22] = cc3; p[23] = cs3;
     }
 
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public static void SegmentStart(double* zu, double* zv, double* cd, double* sd, double* cS, double* sS,
         double* up, double* u, double* vp, double* v, int np, bool advance)
     {

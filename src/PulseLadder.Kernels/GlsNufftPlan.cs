@@ -1,3 +1,4 @@
+using System.Runtime.CompilerServices;
 namespace PulseLadder.Kernels;
 
 /// <summary>
@@ -65,10 +66,30 @@ public sealed class GlsNufftPlan
     }
 
     /// <summary>First frequency, cycles/day.</summary>
-    public double F0 { get; }
+    public double F0 { get; private set; }
 
     /// <summary>Frequency step, cycles/day.</summary>
-    public double Df { get; }
+    public double Df { get; private set; }
+
+    /// <summary>Re-points a pooled plan at another grid with the same <see cref="Count"/> (tables depend on Count only).</summary>
+    internal void Retarget(double f0, double df)
+    {
+        if (!double.IsFinite(f0) || !(df > 0) || !double.IsFinite(df)) throw new ArgumentException("f0 must be finite and df finite and > 0.");
+        F0 = f0; Df = df;
+    }
+
+    /// <summary>Estimated seconds for one call on this machine class (FFT and spreading terms; see <see cref="Periodogram.GlsAuto"/>).</summary>
+    internal static double EstimatedSeconds(long n, long count)
+    {
+        long mm = count + (count & 1), mr = 1;
+        while (mr < 2 * mm || mr < 4 * DefaultSpread) mr <<= 1;
+        double log2 = Math.Log2(mr);
+        // Calibrated on the 2-core AVX-512 machine of docs/PERFORMANCE.md: per element and FFT stage ~1.5 ns while a
+        // grid fits in cache (<= 2^18 complex, 4 MB) and ~3.5 ns beyond (three transforms); ~1.5 ns per spread update
+        // (2 Msp updates per point and transform); ~10 ns per output frequency.
+        double perStage = mr <= 1 << 18 ? 1.5e-9 : 3.5e-9;
+        return 3.0 * mr * log2 * perStage + 3.0 * n * 2 * DefaultSpread * 1.5e-9 + count * 10e-9;
+    }
 
     /// <summary>Number of frequencies.</summary>
     public int Count { get; }
@@ -80,6 +101,7 @@ public sealed class GlsNufftPlan
     public string MethodName => "gls-nufft-gauss" + _msp.ToString(System.Globalization.CultureInfo.InvariantCulture);
 
     /// <summary>Computes power; contract as <see cref="GlsReference.Compute"/>, with <c>power.Length == Count</c>.</summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public void Execute(ReadOnlySpan<double> t, ReadOnlySpan<double> y, ReadOnlySpan<double> w, Span<double> power)
     {
         if (t.Length != y.Length || t.Length != w.Length) KernelThrow.LengthMismatch();
@@ -151,6 +173,7 @@ public sealed class GlsNufftPlan
         }
     }
 
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     private void Extract(double[] dst)
     {
         int mr = _mr, half = _mm / 2;
@@ -164,6 +187,7 @@ public sealed class GlsNufftPlan
     }
 
     /// <summary>Gaussian gridding of (qr, qi) at x onto the periodic grid, then the FFT.</summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     private void SpreadAndTransform(int n)
     {
         Array.Clear(_grid);

@@ -1,3 +1,4 @@
+using System.Runtime.CompilerServices;
 namespace PulseLadder.Kernels;
 
 /// <summary>
@@ -131,6 +132,7 @@ public sealed unsafe class GlsPlan
     }
 
     /// <summary>Normalises weights, centres values and fills the point buffers; false when the fit is degenerate.</summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     private bool Prepare(ReadOnlySpan<double> t, ReadOnlySpan<double> y, ReadOnlySpan<double> w)
     {
         // Same order of operations as GlsReference, so the normalisation constants are bit-identical.
@@ -173,6 +175,7 @@ public sealed unsafe class GlsPlan
         return true;
     }
 
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     private void ProcessChunk(int chunk, Worker wk, double* power)
     {
         int k0 = chunk * ReseedInterval;

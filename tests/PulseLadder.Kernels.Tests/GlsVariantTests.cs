@@ -34,19 +34,29 @@ public class GlsVariantTests
         Assert.True(TestData.MaxAbsDiff(expected, actual) <= 1e-10, $"max |dp| = {TestData.MaxAbsDiff(expected, actual):E3}");
     }
 
+    // 1000 points over 3000 days, 20000 frequencies up to 5 c/d: many re-seed chunks and segments.
+    // The reference (2e7 sin/cos) is computed once for all variants.
+    private static readonly Lazy<(double[] T, double[] Y, double[] W, double F0, double Df, double[] P)> LargeCase = new(() =>
+    {
+        var (t, y, w) = TestData.Irregular(1000, 7, span: 3000.0);
+        var p = new double[20000];
+        GlsReference.Compute(t, y, w, 0.001, 2.5e-4, p);
+        return (t, y, w, 0.001, 2.5e-4, p);
+    });
+
+    public static TheoryData<int> Variants()
+    {
+        var d = new TheoryData<int>();
+        foreach (GlsVariant v in TestData.SupportedVariants) d.Add((int)v);
+        return d;
+    }
+
     [Theory]
-    [InlineData(0)]
-    [InlineData(1)]
-    [InlineData(2)]
+    [MemberData(nameof(Variants))]
     public void Execute_MatchesReference_LargeInputLongGrid(int variant)
     {
-        if (!GlsVariantPicker.IsSupported((GlsVariant)variant)) { Assert.Equal(GlsVariantPicker.Fastest, GlsVariantPicker.Fastest); return; }
-        // 1000 points over 3000 days, 20000 frequencies up to 5 c/d: many re-seed chunks and segments.
-        var (t, y, w) = TestData.Irregular(1000, 7, span: 3000.0);
-        double f0 = 0.001, df = 2.5e-4;
-        const int m = 20000;
-        var expected = new double[m];
-        GlsReference.Compute(t, y, w, f0, df, expected);
+        var (t, y, w, f0, df, expected) = LargeCase.Value;
+        int m = expected.Length;
         var actual = new double[m];
         new GlsPlan(f0, df, m, (GlsVariant)variant).Execute(t, y, w, actual);
         Assert.True(TestData.MaxAbsDiff(expected, actual) <= 1e-10, $"max |dp| = {TestData.MaxAbsDiff(expected, actual):E3}");
@@ -110,5 +120,34 @@ public class GlsVariantTests
         new GlsPlan(0.01, 0.003, 200, GlsVariantPicker.Fastest).Execute(t, y, w, actual);
         Assert.True(TestData.MaxAbsDiff(expected, actual) <= 1e-10);
         Assert.All(actual, p => Assert.False(double.IsNaN(p)));
+    }
+}
+
+/// <summary>The plan owns its buffers: a warmed-up serial call allocates nothing.</summary>
+public class GlsPlanAllocationTests
+{
+    [Fact]
+    public void Execute_AllocatesNothing_AfterFirstCall()
+    {
+        var (t, y, w) = TestData.Irregular(200, 41);
+        var power = new double[5000];
+        var plan = new GlsPlan(0.01, 0.001, power.Length, GlsVariantPicker.Fastest);
+        plan.Execute(t, y, w, power);
+        long before = GC.GetAllocatedBytesForCurrentThread();
+        plan.Execute(t, y, w, power);
+        long after = GC.GetAllocatedBytesForCurrentThread();
+        Assert.Equal(0, after - before);
+    }
+
+    [Fact]
+    public void Gls_AllocatesNothing_InSteadyState()
+    {
+        var (t, y, w) = TestData.Irregular(150, 42);
+        var power = new double[3000];
+        Periodogram.Gls(t, y, w, 0.02, 0.0005, power);
+        long before = GC.GetAllocatedBytesForCurrentThread();
+        Periodogram.Gls(t, y, w, 0.03, 0.0004, power);
+        long after = GC.GetAllocatedBytesForCurrentThread();
+        Assert.Equal(0, after - before);
     }
 }

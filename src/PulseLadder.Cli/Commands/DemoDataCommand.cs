@@ -11,7 +11,7 @@ public sealed class DemoDataCommand : Command<DemoDataCommand.Settings>
         public string Out { get; init; } = "demo-out";
 
         [CommandOption("--seed <N>")]
-        public int? Seed { get; init; }
+        public ulong? Seed { get; init; }
     }
 
     public override int Execute(CommandContext context, Settings settings, CancellationToken cancellationToken)

@@ -8,6 +8,16 @@ namespace PulseLadder.Core.Classification;
 /// <summary>A class with its reasons. Source: "star_list", "reviewer" or "suggested".</summary>
 public sealed record ClassSuggestion(PulsatorClass Class, double Confidence, IReadOnlyList<string> Reasons, string Source);
 
+/// <summary>Another star of the same field, for the period-luminosity position (class as declared, reviewed or suggested).</summary>
+public sealed record FieldStar(string Name, PulsatorClass Class, double PeriodDays, string Band, double IntensityMeanMag);
+
+/// <summary>The other stars of a field (same distance and similar reddening), for the PL-plane test.</summary>
+public sealed record FieldContext(IReadOnlyList<FieldStar> Stars)
+{
+    /// <summary>Fewest fundamental-mode Cepheids in one band for the PL position to be used.</summary>
+    public const int MinStars = 5;
+}
+
 /// <summary>Stage "classify".</summary>
 public static class Classifier
 {
@@ -24,20 +34,31 @@ public static class Classifier
     /// inputs lower the confidence. See docs/light-curves.md for the thresholds and their origin.
     /// </summary>
     public static ClassSuggestion Classify(StarInfo star, PeriodEstimate? period, PeriodSearchResult? search, IReadOnlyList<BandFit> fits, PulsatorClass? reviewerClass)
+        => Classify(star, period, search, fits, reviewerClass, null);
+
+    /// <summary>
+    /// As <see cref="Classify(StarInfo, PeriodEstimate?, PeriodSearchResult?, IReadOnlyList{BandFit}, PulsatorClass?)"/>,
+    /// adding the star's position in its field's period-luminosity plane when <paramref name="field"/> holds at
+    /// least <see cref="FieldContext.MinStars"/> fundamental-mode classical Cepheids measured in the same band.
+    /// </summary>
+    public static ClassSuggestion Classify(StarInfo star, PeriodEstimate? period, PeriodSearchResult? search, IReadOnlyList<BandFit> fits, PulsatorClass? reviewerClass, FieldContext? field)
     {
         if (reviewerClass is { } rc && rc != PulsatorClass.Unknown)
             return new ClassSuggestion(rc, 1.0, ["class set by the reviewer: " + rc.ToCode()], "reviewer");
         if (star.DeclaredClass is { } dc && dc != PulsatorClass.Unknown)
             return new ClassSuggestion(dc, 1.0, ["class declared in the star list: " + dc.ToCode()], "star_list");
-        return Suggest(period, search, fits ?? []);
+        return Suggest(period, search, fits ?? [], field);
     }
 
     private static string F(double v, string fmt = "0.###") => v.ToString(fmt, CultureInfo.InvariantCulture);
 
-    internal static ClassSuggestion Suggest(PeriodEstimate? period, PeriodSearchResult? search, IReadOnlyList<BandFit> fits)
+    internal static ClassSuggestion Suggest(PeriodEstimate? period, PeriodSearchResult? search, IReadOnlyList<BandFit> fits, FieldContext? field)
     {
         var reasons = new List<string>();
-        if (search?.FailureReason is { } failure)
+        // A period chosen by the reviewer stands even where the automatic search found nothing significant.
+        bool reviewerPeriod = period?.Method == "reviewer" && period.PeriodDays > 0 && double.IsFinite(period.PeriodDays);
+        if (reviewerPeriod) reasons.Add("period chosen by the reviewer");
+        if (!reviewerPeriod && search?.FailureReason is { } failure)
         {
             if (failure == "no_significant_period")
                 return new ClassSuggestion(PulsatorClass.NotVariable, 0.7, ["period search found no significant period"], "suggested");
@@ -49,7 +70,7 @@ public static class Classifier
         double P = p.Value;
 
         var peakFap = search?.Peaks is { Count: > 0 } peaks ? peaks[0].Fap : null;
-        if (peakFap is { } fap && fap > MaxFap)
+        if (!reviewerPeriod && peakFap is { } fap && fap > MaxFap)
             return new ClassSuggestion(PulsatorClass.NotVariable, 0.6,
                 [$"best peak false-alarm probability {F(fap, "0.###")} > {F(MaxFap)}: variability not established"], "suggested");
 
@@ -71,12 +92,13 @@ public static class Classifier
             }
         }
         reasons.Insert(0, $"period {F(P, "0.######")} d (log P = {F(Math.Log10(P), "0.000")})");
+        if (peakFap is { } fapShown && !reviewerPeriod) reasons.Add($"best peak false-alarm probability {F(fapShown, "0.0E+0")}");
 
         var (cls, conf) = P switch
         {
             < 0.2 => Other(reasons, "period below 0.2 d: shorter than RR Lyrae and Cepheids (delta Scuti / SX Phe or other)"),
             < 1.0 => RRLyrae(P, band, reasons),
-            <= 100 => Cepheid(P, band, reasons),
+            <= 100 => Cepheid(P, band, reasons, field),
             _ => Other(reasons, "period above 100 d: beyond the Cepheid range (Mira / semiregular or other)"),
         };
         if (band is null) conf = Math.Min(conf, 0.4);
@@ -150,23 +172,21 @@ public static class Classifier
 
     // Cepheids: F vs 1O from period, R21 and amplitude (SCIENCE.md 2.4 table; I-band values checked on the OGLE-III
     // LMC stars in tests/data/open: F R21(I) 0.17-0.53 with R21 > 0.33 below 8 d, 1O R21(I) 0.09-0.24, 1O periods
-    // below ~6 d). Type II only where the curve is RV Tau-like (double wave at P > 20 d: R21 > 0.6).
-    private static (PulsatorClass, double) Cepheid(double P, BandFit? band, List<string> reasons)
+    // below ~6 d). Type II from what one light curve can show: an RV Tau-like double wave (R21 > 0.6) or irregular
+    // cycles (residuals far above the errors) at P > 20 d, a low amplitude for a long period; and, when the caller
+    // gives the field's other Cepheids, the PL position (Type II lie 1.5-2 mag below the classical relation).
+    private static (PulsatorClass, double) Cepheid(double P, BandFit? band, List<string> reasons, FieldContext? field)
     {
         double? r21 = band?.R21;
         bool red = band is not null && IsRedBand(band.Band);
-        if (P > 20 && r21 is { } rr && rr > 0.6)
-        {
-            reasons.Add($"R21 = {F(rr, "0.000")} > 0.6 at P > 20 d: alternating deep/shallow minima (RV Tau-like double wave)");
-            return (PulsatorClass.TypeIICepheid, 0.7);
-        }
-        double f = 0, o = 0;
-        if (P > 6) { f += 3; reasons.Add("period > 6 d: first-overtone Cepheids are rare above ~6 d"); }
+        double f = 0, o = 0, t2 = 0;
+        if (P > 6) { o -= 3; reasons.Add("period > 6 d: first-overtone Cepheids are rare above ~6 d"); }
         else if (P < 1.0) { o += 1; }
         if (r21 is { } r)
         {
             double lowCut = red ? 0.27 : 0.30, highCut = red ? 0.32 : 0.35;
-            if (r < lowCut && P <= 8) { o += 2; reasons.Add($"R21 = {F(r, "0.000")} < {F(lowCut)}: near-sinusoidal (first-overtone-like)"); }
+            if (P > 20 && r > 0.6) { t2 += 2; reasons.Add($"R21 = {F(r, "0.000")} > 0.6 at P > 20 d: alternating deep/shallow minima (RV Tau-like double wave)"); }
+            else if (r < lowCut && P <= 8) { o += 2; reasons.Add($"R21 = {F(r, "0.000")} < {F(lowCut)}: near-sinusoidal (first-overtone-like)"); }
             else if (r > highCut) { f += 2; reasons.Add($"R21 = {F(r, "0.000")} > {F(highCut)}: skewed curve (fundamental-like)"); }
             else if (P > 8) reasons.Add($"R21 = {F(r, "0.000")}: low R21 is normal for F near 10 d (Hertzsprung progression)");
         }
@@ -175,11 +195,59 @@ public static class Classifier
         {
             double ampV = band.Amplitude / VRatio(band.Band);
             if (ampV < 0.55 && P < 6) { o += 1; reasons.Add("amplitude below ~0.55 mag (V): typical of first overtone"); }
-            else if (ampV > 0.7) { f += 1; reasons.Add("amplitude above ~0.7 mag (V): typical of fundamental mode"); }
+            else if (ampV > 0.7 && P <= 20) { f += 1; reasons.Add("amplitude above ~0.7 mag (V): typical of fundamental mode"); }
+            if (P > 20)
+            {
+                if (ampV < 0.8) { t2 += 1; reasons.Add($"amplitude ~{F(ampV, "0.00")} mag (V) is low for a classical Cepheid above 20 d (typically 1.0-1.4 in the LMC test stars)"); }
+                else f += 1;
+                if (band.ResidualRms > 0.05 && band.ReducedChiSquare > 64)
+                {
+                    t2 += 2;
+                    reasons.Add($"residual rms {F(band.ResidualRms, "0.000")} mag is {F(Math.Sqrt(band.ReducedChiSquare), "0")}x the errors: cycle-to-cycle changes, as in RV Tau / W Vir stars (classical Cepheids repeat closely)");
+                }
+            }
         }
-        var cls = f >= o ? PulsatorClass.ClassicalCepheidFundamental : PulsatorClass.ClassicalCepheidFirstOvertone;
-        reasons.Add("Type II Cepheid not excluded: at this period only the PL position separates it reliably (not used here)");
-        double conf = Math.Min(0.75, 0.45 + 0.08 * Math.Abs(f - o));
+        bool plUsed = false;
+        if (field is not null && band is not null && PlResidual(P, band, field) is { } pl)
+        {
+            plUsed = true;
+            reasons.Add($"PL position in field ({pl.Count} fundamental-mode Cepheids, band {band.Band}): {F(pl.Residual, "+0.00;-0.00")} mag from the relation (scatter {F(pl.Scatter, "0.00")})");
+            if (pl.Residual > 1.0 && pl.Residual > 4 * pl.Scatter) { t2 += 4; reasons.Add("far below the classical PL relation: Type II Cepheid"); }
+            else if (pl.Residual < -0.3 && pl.Residual < -2 * pl.Scatter && P < 7) { o += 2; reasons.Add("brighter than the fundamental-mode relation: first overtone"); }
+            else if (Math.Abs(pl.Residual) < Math.Max(0.3, 3 * pl.Scatter)) { f += 1; o -= 0.5; t2 -= 1; reasons.Add("on the fundamental-mode relation"); }
+        }
+        PulsatorClass cls;
+        double margin;
+        if (t2 > f && t2 > o) { cls = PulsatorClass.TypeIICepheid; margin = t2 - Math.Max(f, o); }
+        else if (f >= o) { cls = PulsatorClass.ClassicalCepheidFundamental; margin = f - Math.Max(o, t2); }
+        else { cls = PulsatorClass.ClassicalCepheidFirstOvertone; margin = o - Math.Max(f, t2); }
+        double cap = plUsed ? 0.9 : 0.75;
+        if (!plUsed && cls != PulsatorClass.TypeIICepheid)
+            reasons.Add("Type II Cepheid not excluded: at this period only the PL position separates it reliably (no field PL given)");
+        double conf = Math.Min(cap, 0.45 + 0.08 * margin);
         return (cls, conf);
+    }
+
+    private static (double Residual, double Scatter, int Count)? PlResidual(double P, BandFit band, FieldContext field)
+    {
+        var stars = field.Stars.Where(s => s.Band == band.Band && s.Class == PulsatorClass.ClassicalCepheidFundamental
+                && s.PeriodDays > 0 && double.IsFinite(s.IntensityMeanMag)).ToList();
+        if (stars.Count < FieldContext.MinStars) return null;
+        // Slope: fitted when the field spans at least 0.5 dex in log P with >= 8 stars, else the LMC OGLE slopes
+        // (I -2.96, V -2.78; from memory, common practice) held fixed; zero point = median.
+        var lp = stars.Select(s => Math.Log10(s.PeriodDays)).ToArray();
+        var m = stars.Select(s => s.IntensityMeanMag).ToArray();
+        double slope = band.Band == "V" ? -2.78 : -2.96;
+        if (stars.Count >= 8 && lp.Max() - lp.Min() >= 0.5)
+        {
+            double mx = lp.Average(), my = m.Average(), sxy = 0, sxx = 0;
+            for (int i = 0; i < lp.Length; i++) { sxy += (lp[i] - mx) * (m[i] - my); sxx += (lp[i] - mx) * (lp[i] - mx); }
+            slope = sxy / sxx;
+        }
+        var res = lp.Select((x, i) => m[i] - slope * x).OrderBy(v => v).ToArray();
+        double zp = res[res.Length / 2];
+        var dev = res.Select(v => Math.Abs(v - zp)).OrderBy(v => v).ToArray();
+        double scatter = Math.Max(0.05, 1.4826 * dev[dev.Length / 2]);
+        return (band.IntensityMeanMag - (zp + slope * Math.Log10(P)), scatter, stars.Count);
     }
 }

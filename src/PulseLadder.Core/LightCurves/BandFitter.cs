@@ -56,7 +56,7 @@ internal static class BandFitter
             if (b.OwnOrderCapacity() >= 2)
                 results[b.Name] = FitBand(b, new FourierModel(maxOrder), cleaning);
         }
-        var template = results.Values.Where(r => r.Order >= 2)
+        var template = results.Values.Where(r => !r.Failed && r.Order >= 2)
             .OrderByDescending(r => r.Data.N).ThenBy(r => r.Data.Name, StringComparer.Ordinal).FirstOrDefault();
         foreach (var b in bands)
         {
@@ -72,7 +72,7 @@ internal static class BandFitter
         }
 
         // Common phase origin: epoch of maximum of the best-sampled band (the first own fit, else any fit).
-        var reference = template ?? results.Values.OrderByDescending(r => r.Data.N).ThenBy(r => r.Data.Name, StringComparer.Ordinal).FirstOrDefault();
+        var reference = template ?? results.Values.Where(r => !r.Failed).OrderByDescending(r => r.Data.N).ThenBy(r => r.Data.Name, StringComparer.Ordinal).FirstOrDefault();
         double phaseZero = reference?.EpochOfMax ?? t0;
 
         var fits = new List<BandFit>();
@@ -82,6 +82,7 @@ internal static class BandFitter
         {
             if (!results.TryGetValue(b.Name, out var r)) continue;
             rejections.AddRange(r.Rejections);
+            if (r.Failed) continue;
             offsets.AddRange(r.Offsets);
             for (int j = 0; j < b.N; j++) if (r.Active[j]) keptIdx.Add(b.Index[j]);
             var flags = new List<string>(r.Flags);
@@ -161,10 +162,10 @@ internal static class BandFitter
         /// <summary>Highest Fourier order the point count and phase coverage allow (0 when not even order 1).</summary>
         public int OwnOrderCapacity() => OrderCapacity(Enumerable.Repeat(true, N).ToArray(), 20);
 
-        public int OrderCapacity(bool[] active, int maxOrder)
+        public int OrderCapacity(bool[] active, int maxOrder, bool ignorePoints = false)
         {
             int nAct = active.Count(a => a);
-            int byPoints = (nAct - FixedColumns) / 4; // n <= (N-1)/4 (SCIENCE.md 2.2), offsets counted as parameters
+            int byPoints = ignorePoints ? maxOrder : (nAct - FixedColumns) / 4; // n <= (N-1)/4 (SCIENCE.md 2.2), offsets counted as parameters
             double gap = LargestGap(active);
             int byGap = gap <= 0 ? maxOrder : (int)Math.Floor(1.0 / (2.0 * gap));
             return Math.Max(0, Math.Min(maxOrder, Math.Min(byPoints, byGap)));
@@ -226,18 +227,37 @@ internal static class BandFitter
             var scores = new List<OrderScore>();
             LinearFit.Solution? best = null;
             int bestOrder = 0;
-            double bestBic = double.PositiveInfinity;
-            for (int n = 1; n <= cap; n++)
+            // Orders beyond the guards are still scored (and shown, marked) so a reviewer sees what was excluded.
+            int scored = Math.Max(cap, Math.Min(maxOrder, (nAct - b.FixedColumns - 1) / 2));
+            int byGap = b.OrderCapacity(active, maxOrder, ignorePoints: true);
+            var normal = new LinearFit.Normal(x, stride, b.FixedColumns + 2 * scored, b.Y, b.W, active);
+            var candidates = new List<(int Order, LinearFit.Solution Sol, double Bic)>();
+            for (int n = 1; n <= scored; n++)
             {
                 int p = b.FixedColumns + 2 * n;
-                var sol = LinearFit.Solve(x, stride, p, b.Y, b.W, active);
+                var sol = normal.Solve(p, withCovariance: false);
                 if (sol is null) { scores.Add(new OrderScore(n, 0, 0, "singular")); continue; }
                 double bic = sol.ChiSquare + p * Math.Log(nAct);
-                string? why = Rings(b, sol, n, active) ? "ringing" : null;
+                string? why = n > cap ? (n > byGap ? "phase_gap" : "too_few_points") : null;
                 scores.Add(new OrderScore(n, sol.ChiSquare, bic, why));
-                if (why is null && bic < bestBic) { bestBic = bic; best = sol; bestOrder = n; }
+                if (why is null) candidates.Add((n, sol, bic));
+            }
+            // Ringing is checked from the best BIC down and only until an order passes (order 1 is the minimal
+            // periodic model and is never refused: poor coverage is flagged instead).
+            foreach (var c in candidates.OrderBy(c => c.Bic))
+            {
+                if (c.Order > 1 && Rings(b, c.Sol, c.Order, active))
+                {
+                    int i = scores.FindIndex(s => s.Order == c.Order);
+                    scores[i] = scores[i] with { Rejected = "ringing" };
+                    continue;
+                }
+                best = c.Sol;
+                bestOrder = c.Order;
+                break;
             }
             if (best is null) return null;
+            best = normal.Solve(b.FixedColumns + 2 * bestOrder)!;
             if (scores.Any(s => s.Rejected == "ringing")) flags.Add("ringing_orders_rejected");
             return (best, 2 * bestOrder, scores, flags);
         }
@@ -299,7 +319,11 @@ internal static class BandFitter
     }
 
     internal sealed record BandResult(BandData Data, BandFit Fit, double[] Cos, double[] Sin, int Order, bool[] Active,
-        List<Rejection> Rejections, List<ObserverOffset> Offsets, List<string> Flags, double EpochOfMax);
+        List<Rejection> Rejections, List<ObserverOffset> Offsets, List<string> Flags, double EpochOfMax)
+    {
+        /// <summary>True when no model could be fitted (all points reported as rejections).</summary>
+        public bool Failed { get; init; }
+    }
 
     internal static (double[] Cos, double[] Sin) Split(double[] beta, int fixedColumns, int order)
     {
@@ -359,9 +383,16 @@ internal static class BandFitter
         {
             var (sol, cols, _, _) = chosen.Value;
             Residuals(b, x, stride, sol, b.FixedColumns + cols, z);
-            if (FlagBadNights(b, z, active, badNight))
+            // Clipped points count towards their night's rms: a night whose points were clipped one by one is
+            // still a bad night, and is reported as such.
+            var eligible = Enumerable.Repeat(true, b.N).ToArray();
+            if (FlagBadNights(b, z, eligible, badNight))
             {
-                for (int j = 0; j < b.N; j++) active[j] = !clipped[j] && !badNight[j];
+                for (int j = 0; j < b.N; j++)
+                {
+                    if (badNight[j]) clipped[j] = false;
+                    active[j] = !clipped[j] && !badNight[j];
+                }
                 chosen = model.Choose(b, x, stride, active) ?? chosen;
             }
         }
@@ -377,7 +408,7 @@ internal static class BandFitter
                 rejections.Add(Reject(b.Source[b.Index[j]], "fit", "band_too_sparse", "no stable fit for band " + b.Name));
             }
             var empty = new BandFit { Band = b.Name, PeriodDays = b.Period, PhaseZeroBjd = b.T0, A0 = b.YMean, MagnitudeMean = b.YMean, IntensityMeanMag = b.YMean, Flags = ["no_fit"] };
-            return new BandResult(b, empty, [], [], 0, active, rejections, [], flags, b.T0);
+            return new BandResult(b, empty, [], [], 0, active, rejections, [], flags, b.T0) { Failed = true };
         }
 
         var (final, shapeCols, scores, modelFlags) = chosen.Value;

@@ -55,10 +55,14 @@ internal static class HarmonicFit
         Span<double> row = p <= 40 ? stackalloc double[p] : new double[p];
         ata.Clear(); aty.Clear();
         var t = b.T; var y = b.Y; var w = b.W; var o = b.Obs;
+        // Magnitudes centred on the band's weighted mean: chi2 = sum w y^2 - x.(A^T W y) then keeps its digits
+        // (sum w y^2 is chi2_0, within a factor of a few hundred of the residual chi2), and one pass suffices.
+        double mean = b.YMean, yy = 0;
         for (int i = 0; i < t.Length; i++)
         {
             Row(f, t[i], o[i], harmonics, m, row);
-            double wi = w[i], yi = y[i];
+            double wi = w[i], yi = y[i] - mean;
+            yy += wi * yi * yi;
             for (int r = 0; r < p; r++)
             {
                 double wr = wi * row[r];
@@ -73,19 +77,12 @@ internal static class HarmonicFit
         aty.CopyTo(x);
         if (!SmallMatrix.Cholesky(ata, p)) return null;
         SmallMatrix.Solve(ata, p, x);
+        double explained = 0;
+        for (int r = 0; r < p; r++) explained += x[r] * aty[r];
+        double chi2 = Math.Max(0, yy - explained);
+        x[0] += mean;
         if (!param.IsEmpty) x.CopyTo(param);
         if (!cov.IsEmpty) SmallMatrix.Inverse(ata, p, cov);
-
-        // chi2 from the residuals directly: yy - x.aty loses digits when the fit is very good.
-        double chi2 = 0;
-        for (int i = 0; i < t.Length; i++)
-        {
-            Row(f, t[i], o[i], harmonics, m, row);
-            double mdl = 0;
-            for (int r = 0; r < p; r++) mdl += row[r] * x[r];
-            double d = y[i] - mdl;
-            chi2 += w[i] * d * d;
-        }
         return double.IsFinite(chi2) ? chi2 : null;
     }
 

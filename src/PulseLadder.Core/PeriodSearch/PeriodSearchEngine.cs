@@ -43,7 +43,7 @@ internal static class PeriodSearchEngine
         var power = CombinedPower(data, grid);
         var candidates = DistinctPeaks(power, grid, 1.0 / data.Baseline, Math.Max(s.Candidates, s.TopPeaks));
         if (candidates.Count == 0)
-            return result with { FailureReason = "no_significant_period", Notes = [.. notes, "no_peak"], Periodogram = Thinned(power, grid) };
+            return result with { FailureReason = "no_significant_period", Notes = [.. notes, "no_peak"], Periodogram = Thinned(power, grid, SpectralTools.Thin(power)) };
 
         // Refine each candidate on the combined GLS: the grid step is 1/(n0 T), the peak is known to a small fraction of it.
         var refined = new List<Candidate>(candidates.Count);
@@ -64,7 +64,7 @@ internal static class PeriodSearchEngine
             foreach (var c in refined)
             {
                 double h = 2 * grid.Df;
-                var (x, v) = Brent.Minimize(f => HarmonicFit.TotalChi2(data.Bands, orders, refChi2, f), c.Frequency - h, c.Frequency + h, grid.Df * 1e-4);
+                var (x, v) = Brent.Minimize(f => HarmonicFit.TotalChi2(data.Bands, orders, refChi2, f), c.Frequency - h, c.Frequency + h, grid.Df * 1e-2);
                 if (double.IsFinite(v)) { c.ModelFrequency = x; c.ModelChi2 = v; }
             }
         }
@@ -98,9 +98,13 @@ internal static class PeriodSearchEngine
             bootFap = BootstrapFap(data, grid, peaks[0].Power, s.BootstrapSamples, s.Seed);
         }
 
-        var plot = Thinned(power, grid);
+        var plotIdx = SpectralTools.Thin(power);
+        var plot = Thinned(power, grid, plotIdx);
         var wy = new double[plot.X.Length];
-        SpectralTools.Window(data.AllT, plot.X, wy);
+        // A (vectorised) complex multiply costs a small fraction of a sin/cos pair: rotate along the grid unless it is
+        // much longer than the plot.
+        if (grid.Count <= 30L * plotIdx.Length) SpectralTools.WindowOnGrid(data.AllT, grid.F0, grid.Df, plotIdx, wy);
+        else SpectralTools.Window(data.AllT, plot.X, wy);
 
         double bestFap = bootFap ?? peaks[0].Fap ?? 1.0;
         return result with
@@ -116,9 +120,8 @@ internal static class PeriodSearchEngine
         };
     }
 
-    private static Curve Thinned(double[] power, FrequencyGrid grid)
+    private static Curve Thinned(double[] power, FrequencyGrid grid, int[] idx)
     {
-        var idx = SpectralTools.Thin(power);
         var x = new double[idx.Length];
         var y = new double[idx.Length];
         for (int i = 0; i < idx.Length; i++) { x[i] = grid.At(idx[i]); y[i] = power[idx[i]]; }
@@ -254,7 +257,7 @@ internal static class PeriodSearchEngine
                 bands.Add(new BandSeries
                 {
                     Band = s.Band, T = s.T, Y = y, W = w, Obs = s.Obs, Observers = s.Observers,
-                    ObserverCounts = s.ObserverCounts, Chi2Mean = chi0,
+                    ObserverCounts = s.ObserverCounts, Chi2Mean = chi0, YMean = ybar,
                 });
             }
             var sd = new SearchData

@@ -18,6 +18,8 @@ internal sealed class BandSeries
 
     /// <summary>Weighted chi2 about the weighted mean (the GLS chi2_0).</summary>
     public double Chi2Mean { get; init; }
+    /// <summary>Weighted mean magnitude.</summary>
+    public double YMean { get; init; }
 }
 
 /// <summary>
@@ -91,7 +93,7 @@ internal sealed class SearchData
             {
                 Band = g.Key, T = t, Y = y, W = w, Obs = o,
                 Observers = obsNames.Select(x => x.Name).ToArray(), ObserverCounts = obsNames.Select(x => x.N).ToArray(),
-                Chi2Mean = chi0,
+                Chi2Mean = chi0, YMean = ybar,
             });
         }
 

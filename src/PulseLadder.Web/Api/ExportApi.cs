@@ -11,12 +11,12 @@ public static class ExportApi
     public static void Map(RouteGroupBuilder api) =>
         api.MapGet("/fields/{fieldId:long}/export", Export).WithName("ExportField");
 
-    public static Results<FileContentHttpResult, NotFound<Microsoft.AspNetCore.Mvc.ProblemDetails>, BadRequest<Microsoft.AspNetCore.Mvc.ProblemDetails>> Export(
-        Database db, long fieldId, string? format, bool? acceptedOnly)
+    public static Results<FileContentHttpResult, ProblemHttpResult> Export(
+        Database db, long fieldId, string? format, [Microsoft.AspNetCore.Mvc.FromQuery(Name = "accepted_only")] bool? acceptedOnly)
     {
         format = (format ?? "csv").ToLowerInvariant();
         if (format is not ("csv" or "json"))
-            return TypedResults.BadRequest(new Microsoft.AspNetCore.Mvc.ProblemDetails { Title = "Unknown format", Detail = "format must be csv or json", Status = 400 });
+            return TypedResults.Problem(title: "Unknown format", detail: "format must be csv or json", statusCode: 400);
         using var c = db.Open();
         var f = FieldStore.Get(c, fieldId);
         if (f is null) return FieldsApi.NotFound($"No field with id {fieldId}.");

@@ -40,8 +40,8 @@ public static class FieldsApi
         return TypedResults.Ok(list);
     }
 
-    public static Results<Ok<StarPage>, NotFound<Microsoft.AspNetCore.Mvc.ProblemDetails>> Stars(
-        Database db, long fieldId, string? state, string? @class, string? q, int? page, int? pageSize)
+    public static Results<Ok<StarPage>, ProblemHttpResult> Stars(
+        Database db, long fieldId, string? state, string? @class, string? q, int? page, [Microsoft.AspNetCore.Mvc.FromQuery(Name = "page_size")] int? pageSize)
     {
         using var c = db.Open();
         if (FieldStore.Get(c, fieldId) is null) return NotFound($"No field with id {fieldId}.");
@@ -54,7 +54,7 @@ public static class FieldsApi
         return TypedResults.Ok(new StarPage(all.Count, p, size, all.Skip((p - 1) * size).Take(size).ToList()));
     }
 
-    public static Results<Ok<FieldSummaryView>, NotFound<Microsoft.AspNetCore.Mvc.ProblemDetails>> Summary(Database db, long fieldId)
+    public static Results<Ok<FieldSummaryView>, ProblemHttpResult> Summary(Database db, long fieldId)
     {
         using var c = db.Open();
         var f = FieldStore.Get(c, fieldId);
@@ -73,8 +73,8 @@ public static class FieldsApi
         return TypedResults.Ok(new ProgressDto(total, total - pending, pending));
     }
 
-    internal static NotFound<Microsoft.AspNetCore.Mvc.ProblemDetails> NotFound(string detail) =>
-        TypedResults.NotFound(new Microsoft.AspNetCore.Mvc.ProblemDetails { Title = "Not found", Detail = detail, Status = 404 });
+    internal static ProblemHttpResult NotFound(string detail) =>
+        TypedResults.Problem(title: "Not found", detail: detail, statusCode: 404);
 }
 
 public sealed record FieldSummaryView(long FieldId, string Field, long NUsed, double? Mu, double? MuErr, string ComputedAt, System.Text.Json.JsonElement Detail);

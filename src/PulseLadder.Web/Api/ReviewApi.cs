@@ -23,7 +23,7 @@ public static class ReviewApi
         api.MapGet("/review/next", Next).WithName("NextForReview");
     }
 
-    public static Results<Created<DecisionResponse>, NotFound<ProblemDetails>, ValidationProblem> Decide(
+    public static Results<Created<DecisionResponse>, ProblemHttpResult, ValidationProblem> Decide(
         Database db, IAnalysisQueue queue, TimeProvider clock, long starId, DecisionRequest body)
     {
         var errors = new Dictionary<string, string[]>();

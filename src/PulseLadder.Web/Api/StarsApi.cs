@@ -23,7 +23,7 @@ public static class StarsApi
         api.MapGet("/stars/by-name/{name}", GetByName).WithName("GetStarByName");
     }
 
-    public static Results<Ok<StarDetailDto>, NotFound<Microsoft.AspNetCore.Mvc.ProblemDetails>> Get(Database db, long starId)
+    public static Results<Ok<StarDetailDto>, ProblemHttpResult> Get(Database db, long starId)
     {
         using var c = db.Open();
         var s = StarStore.Get(c, starId);
@@ -31,7 +31,7 @@ public static class StarsApi
         return TypedResults.Ok(Detail(c, s));
     }
 
-    public static Results<Ok<StarDetailDto>, NotFound<Microsoft.AspNetCore.Mvc.ProblemDetails>> GetByName(Database db, string name)
+    public static Results<Ok<StarDetailDto>, ProblemHttpResult> GetByName(Database db, string name)
     {
         using var c = db.Open();
         var s = StarStore.GetByName(c, name);

@@ -95,7 +95,7 @@ public static class UploadsApi
         return TypedResults.Created($"/api/v1/uploads/{outcome.BatchId}", body);
     }
 
-    public static Results<Ok<UploadStatus>, NotFound<ProblemDetails>> Status(Database db, long uploadId)
+    public static Results<Ok<UploadStatus>, ProblemHttpResult> Status(Database db, long uploadId)
     {
         using var c = db.Open();
         var files = UploadStore.Batch(c, uploadId);

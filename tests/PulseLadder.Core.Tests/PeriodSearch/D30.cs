@@ -3,7 +3,7 @@ using PulseLadder.Core.Pipeline;
 namespace PulseLadder.Core.Tests.PeriodSearch;
 
 /// <summary>Test light curve D30 of SCIENCE.md 7.1 (synthetic, true P = 5.366249 d, all errors 0.030 mag).</summary>
-internal static class D30
+public static class D30
 {
     public static readonly double[] T =
     [

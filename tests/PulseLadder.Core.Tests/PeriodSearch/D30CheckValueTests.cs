@@ -86,6 +86,19 @@ public class D30CheckValueTests
     }
 
     [Fact]
+    public void WindowOnGrid_EqualsDirectWindow_OnD30Grid()
+    {
+        // Invariant: the rotating-phasor window equals the direct sum (Deeming 1975 definition) at every grid index.
+        var t = D30.T;
+        int[] idx = [0, 1, 2, 400, 511, 512, 513, 851, 1500, 3000];
+        var fast = new double[idx.Length];
+        SpectralTools.WindowOnGrid(t, 0.02, 0.00232656, idx, fast);
+        var direct = new double[idx.Length];
+        SpectralTools.Window(t, idx.Select(k => 0.02 + k * 0.00232656).ToArray(), direct);
+        for (int i = 0; i < idx.Length; i++) Assert.Equal(direct[i], fast[i], 1e-12);
+    }
+
+    [Fact]
     public void RefinePeriod_ErrorsMatchCv18_OnD30()
     {
         var r = Search();
