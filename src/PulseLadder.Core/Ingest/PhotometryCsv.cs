@@ -35,6 +35,14 @@ public static class PhotometryCsv
         return Parse(reader, fileName, options);
     }
 
+    /// <summary>Streams a byte stream (see the TextReader batch overload); the stream is left open. Reads synchronously.</summary>
+    public static IngestSummary Parse(Stream stream, string fileName, PhotometryParseOptions options,
+        RowBatchHandler<PhotometryRow> onBatch, int batchSize = DefaultBatchSize)
+    {
+        using var reader = OpenText(stream);
+        return Parse(reader, fileName, options, onBatch, batchSize);
+    }
+
     /// <summary>
     /// Streams the file: accepted rows go to <paramref name="onBatch"/> in file order, at most
     /// <paramref name="batchSize"/> at a time, so memory does not grow with the file (apart from the duplicate

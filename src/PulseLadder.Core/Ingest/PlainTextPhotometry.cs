@@ -25,6 +25,14 @@ public static class PlainTextPhotometry
         return Parse(reader, fileName, star, band, options);
     }
 
+    /// <summary>Streams a byte stream (see the TextReader batch overload); the stream is left open. Reads synchronously.</summary>
+    public static IngestSummary Parse(Stream stream, string fileName, string star, string band, PhotometryParseOptions options,
+        RowBatchHandler<PhotometryRow> onBatch, int batchSize = PhotometryCsv.DefaultBatchSize)
+    {
+        using var reader = PhotometryCsv.OpenText(stream);
+        return Parse(reader, fileName, star, band, options, onBatch, batchSize);
+    }
+
     /// <summary>Streams accepted rows to <paramref name="onBatch"/> (see <see cref="PhotometryCsv"/>'s batch overload).</summary>
     public static IngestSummary Parse(TextReader reader, string fileName, string star, string band, PhotometryParseOptions options,
         RowBatchHandler<PhotometryRow> onBatch, int batchSize = PhotometryCsv.DefaultBatchSize)
