@@ -52,6 +52,25 @@ internal static class DistanceComputation
             mags.Add(f.IntensityMeanMag);
             errs.Add(double.IsFinite(f.IntensityMeanErr) && f.IntensityMeanErr > 0 ? f.IntensityMeanErr : 0.0);
         }
+        if (s.DeriveMissingBands)
+        {
+            foreach (var t in registry.BandTransforms)
+            {
+                if (bandNames.Contains(t.Target)) continue;
+                int im = bandNames.IndexOf(t.Mag), i1 = bandNames.IndexOf(t.Color1), i2 = bandNames.IndexOf(t.Color2);
+                if (im < 0 || i1 < 0 || i2 < 0) continue;
+                // Error of mag + c1 (c1band - c2band) with the bands' errors combined by coefficient, plus the transform's scatter.
+                var coef = new Dictionary<int, double> { [im] = 1.0 };
+                coef[i1] = coef.GetValueOrDefault(i1) + t.C1;
+                coef[i2] = coef.GetValueOrDefault(i2) - t.C1;
+                double value = t.C0, var2 = t.Scatter * t.Scatter;
+                foreach (var (i, c) in coef) { value += c * mags[i]; var2 += c * c * errs[i] * errs[i]; }
+                bandNames.Add(t.Target);
+                mags.Add(value);
+                errs.Add(Math.Sqrt(var2));
+                flags.Add("band_derived:" + t.Id);
+            }
+        }
         if (bandNames.Count == 0) return Fail("no_usable_band", flags);
 
         // Period actually used by fundamental-mode relations.

@@ -10,7 +10,7 @@ public class CalibrationRegistryTests
     {
         var names = typeof(CalibrationRegistry).Assembly.GetManifestResourceNames()
             .Select(n => n.Replace('\\', '/')).ToHashSet();
-        foreach (var f in new[] { "relations.csv", "anchors.csv", "period_colour.csv", "extinction_coefficients.csv" })
+        foreach (var f in new[] { "relations.csv", "anchors.csv", "period_colour.csv", "extinction_coefficients.csv", "band_transforms.csv" })
             Assert.Contains("PulseLadder.Core.Data.calibration/" + f, names);
     }
 
