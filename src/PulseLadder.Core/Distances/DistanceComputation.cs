@@ -133,12 +133,13 @@ internal static class DistanceComputation
         var ctx = new Inputs
         {
             Mags = mags.ToArray(), Errs = errs.ToArray(), PeriodDays = periodDays, SigmaP = sigmaP,
-            Ebv = ebv ?? 0, EbvErr = ebvErr ?? 0, Rv = s.Rv, RvErr = Math.Max(0, s.RvErr), Law = s.ExtinctionLaw,
+            Ebv = ebv ?? 0, EbvErr = Math.Max(0, ebvErr ?? 0), Rv = s.Rv, RvErr = Math.Max(0, s.RvErr), Law = s.ExtinctionLaw,
             Bands = bandNames.ToArray(),
         };
         var routes = EvaluateRoutes(models, ctx, feh, s, seed);
 
         int ri = models.IndexOf(reported);
+        routes[ri] = routes[ri] with { Reported = true };
         var rep = routes[ri];
         var repRel = reported.Relation;
         if (fundMethod is not null && reported.PScale != 1.0) flags.Add("period_fundamentalised:" + fundMethod);
@@ -309,7 +310,7 @@ internal static class DistanceComputation
             var rel = m.Relation;
             logPn[r] = Math.Log10(x.PeriodDays * m.PScale);
             fehVal[r] = feh ?? rel.FeHDefault;
-            fehErr[r] = feh is null ? rel.FeHDefaultErr : s.FeHErr;
+            fehErr[r] = feh is null ? rel.FeHDefaultErr : Math.Max(0, s.FeHErr);
             nominal[r] = Mu(m, x.Mags, logPn[r], x.Ebv, x.Rv, k, fehVal[r], rel.A, rel.B, rel.Gamma, m.AnchorMu, 0.0);
             budgets[r] = Budget(m, x, k, dk, logPn[r], fehVal[r], fehErr[r]);
         }

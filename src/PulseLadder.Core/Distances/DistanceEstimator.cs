@@ -109,6 +109,8 @@ public sealed record DistanceRoute
     /// <summary>Change of mu when R_V rises by its 1-sigma error (signed; fully correlated between stars).</summary>
     public double RvSensitivity { get; init; }
     public IReadOnlyList<string> Flags { get; init; } = [];
+    /// <summary>True for the route the star's result reports.</summary>
+    public bool Reported { get; init; }
 }
 
 /// <summary>Output of <see cref="DistanceEstimator.EstimateDistance"/>; FailureReason set when no distance is possible.</summary>

@@ -120,6 +120,7 @@ public class DistanceEstimatorTests
         var wes = DistanceEstimator.EstimateDistance(star, PulsatorClass.ClassicalCepheidFundamental, 10, 0.001, fits, new DistanceSettings { MonteCarloDraws = 200 });
         Assert.Equal(["benedict2007_i", "benedict2007_k", "benedict2007_v", "benedict2007_wvi"], wes.Routes.Select(r => r.RelationId).Order().ToArray());
         Assert.Equal("benedict2007_wvi", wes.RelationId);
+        Assert.Equal("benedict2007_wvi", Assert.Single(wes.Routes, r => r.Reported).RelationId);
         Assert.Contains("band_substituted:Ks->K", wes.Routes.Single(r => r.RelationId == "benedict2007_k").Flags);
         var red = DistanceEstimator.EstimateDistance(star, PulsatorClass.ClassicalCepheidFundamental, 10, 0.001, fits,
             new DistanceSettings { MonteCarloDraws = 200, RoutePreference = RoutePreference.ReddeningCorrectedFirst });
