@@ -9,8 +9,6 @@ namespace PulseLadder.Core.Distances;
 /// <summary>The work behind <see cref="DistanceEstimator.EstimateDistance(StarInfo, PulsatorClass, double, double, IReadOnlyList{BandFit}, DistanceSettings, CalibrationRegistry)"/>.</summary>
 internal static class DistanceComputation
 {
-    private sealed record Failure(string Reason, IReadOnlyList<string> Flags);
-
     /// <summary>A route prepared for evaluation: which star bands enter with which coefficient.</summary>
     private sealed class RouteModel
     {
