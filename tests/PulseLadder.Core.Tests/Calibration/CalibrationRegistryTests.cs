@@ -5,6 +5,7 @@ namespace PulseLadder.Core.Tests.Calibration;
 
 public class CalibrationRegistryTests
 {
+    // Build contract: Data/** is embedded with LogicalName PulseLadder.Core.Data.%(RecursiveDir)%(Filename)%(Extension).
     [Fact]
     public void ManifestResourceNames_ContainEveryCalibrationTable_WhenBuilt()
     {
@@ -75,6 +76,7 @@ public class CalibrationRegistryTests
         Assert.Equal(0.59 + 0.214 * 0.5, r.RelationMagnitude(Math.Log10(0.55), -1.0), 1e-9);
     }
 
+    // Policy documented in docs/calibrations.md (default relation per class and bands).
     [Fact]
     public void Default_PrefersWesenheit_ForCepheidWithVAndI()
     {
@@ -89,6 +91,7 @@ public class CalibrationRegistryTests
 
     private const string Header = "id,family,class,kind,mag,color1,color2,wesenheit_r,a,a_err,b,b_err,p0,gamma,gamma_err,metallicity_scale,z_ref,feh_default,feh_default_err,alpha_fe,scatter,logp_min,logp_max,period_mode,anchor,source,table,tag,notes";
 
+    // Contract: administrators add relations as CSV rows (docs/calibrations.md).
     [Fact]
     public void WithUserRelations_AddsRelation_WhenRowIsValid()
     {
@@ -101,6 +104,7 @@ public class CalibrationRegistryTests
         Assert.False(CalibrationRegistry.Embedded.TryGet("my_w_vi", out _));
     }
 
+    // Contract: validation errors name the 1-based line and the column (docs/calibrations.md).
     [Fact]
     public void WithUserRelations_ReportsLineAndField_WhenValuesAreBad()
     {

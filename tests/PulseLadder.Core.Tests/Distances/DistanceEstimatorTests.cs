@@ -112,6 +112,7 @@ public class DistanceEstimatorTests
         Assert.Equal("none", r.EbvSource);
     }
 
+    // Contract (docs/distances.md, route preference policy): all routes of the family side by side, one reported.
     [Fact]
     public void EstimateDistance_ComputesAllRoutes_AndReportsByPreference()
     {
@@ -148,6 +149,7 @@ public class DistanceEstimatorTests
         Assert.Contains("ebv_from_period_colour", r.Flags);
     }
 
+    // Contract: E(B-V) precedence star list > field default > period-colour (docs/distances.md); value from CV-26.
     [Fact]
     public void EstimateDistance_UsesFieldDefaultEbv_WhenStarHasNone()
     {
@@ -172,6 +174,7 @@ public class DistanceEstimatorTests
         Assert.Equal(0.40190, rrc.PeriodUsedDays, 1e-4);
     }
 
+    // Benedict 2007 calibrators span log P 0.57-1.55 (relations.csv, M): P = 1.5 d lies below, 10 d inside.
     [Fact]
     public void EstimateDistance_FlagsExtrapolation_OutsidePeriodRange()
     {
@@ -183,6 +186,7 @@ public class DistanceEstimatorTests
         Assert.DoesNotContain("period_extrapolated", inside.Flags);
     }
 
+    // Contract: expected failures are values with a reason code (docs/distances.md).
     [Theory]
     [InlineData(PulsatorClass.Unknown, "unclassified")]
     [InlineData(PulsatorClass.NotVariable, "not_variable")]
@@ -193,6 +197,7 @@ public class DistanceEstimatorTests
         Assert.Equal(reason, r.FailureReason);
     }
 
+    // Contract: failure reason codes (docs/distances.md).
     [Fact]
     public void EstimateDistance_FailsWithReason_WhenBandsOrReddeningMissing()
     {
@@ -205,6 +210,7 @@ public class DistanceEstimatorTests
         Assert.Equal("unknown_relation", unknown.FailureReason);
     }
 
+    // Contract: seeded, reproducible, System.Text.Json-serialisable without NaN (HELPER-RULES, ARCHITECTURE "Numbers").
     [Fact]
     public void EstimateDistance_IsDeterministic_AndSerialisesWithoutNaN()
     {
@@ -229,6 +235,7 @@ public class DistanceEstimatorTests
         Assert.Equal(s, JsonSerializer.Deserialize<DistanceSettings>(JsonSerializer.Serialize(s)));
     }
 
+    // The stage applies A = (A/A_V)(lambda_eff) R_V E(B-V) (SCIENCE 5.1) with the law chosen in settings.
     [Theory]
     [InlineData(ExtinctionLaw.Ccm89)]
     [InlineData(ExtinctionLaw.Odonnell94)]
