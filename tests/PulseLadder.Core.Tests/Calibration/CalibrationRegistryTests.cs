@@ -67,6 +67,33 @@ public class CalibrationRegistryTests
         Assert.Equal(-0.5510, k.RelationMagnitude(Math.Log10(0.566868), -1.5), 1e-3);
     }
 
+    // SCIENCE.md 3.3 row T1 (Matsunaga et al. 2006): M_Ks = -2.41 log P - 1.11 -> -1.53 at 1.5 d, -3.94 at 15 d [X].
+    [Fact]
+    public void RelationMagnitude_MatchesScienceT1_ForMatsunaga2006()
+    {
+        Assert.True(CalibrationRegistry.Embedded.TryGet("matsunaga2006_ks", out var t));
+        Assert.Equal(-1.53, t.RelationMagnitude(Math.Log10(1.5), 0), 0.005);
+        Assert.Equal(-3.94, t.RelationMagnitude(Math.Log10(15), 0), 0.005);
+    }
+
+    // SCIENCE.md 3.1 M(logP=1) column [X]: Fouque 2007 V -3.953, K -5.647, W -5.891; Persson 2004 K 16.051 - 3.281
+    // -> 12.770 apparent, -5.707 absolute with mu_LMC = 18.477.
+    [Fact]
+    public void RelationMagnitude_MatchesScienceMAtLogP1_ForPivotStoredRelations()
+    {
+        var reg = CalibrationRegistry.Embedded;
+        Assert.True(reg.TryGet("fouque2007_v", out var v));
+        Assert.True(reg.TryGet("fouque2007_k", out var k));
+        Assert.True(reg.TryGet("fouque2007_wvi", out var w));
+        Assert.True(reg.TryGet("persson2004_k", out var pk));
+        Assert.Equal(-3.953, v.RelationMagnitude(1, 0), 1e-9);
+        Assert.Equal(-1.275, v.RelationMagnitude(0, 0), 1e-9);
+        Assert.Equal(-5.647, k.RelationMagnitude(1, 0), 1e-9);
+        Assert.Equal(-5.891, w.RelationMagnitude(1, 0), 1e-9);
+        Assert.Equal(16.051, pk.RelationMagnitude(0, -0.35), 1e-9);
+        Assert.Equal(-5.707, pk.RelationMagnitude(1, -0.35) - reg.Lmc.Mu!.Value, 1e-3);
+    }
+
     // SCIENCE.md CV-30(c): M_V(RR) = 0.59 at [Fe/H] = -1.5 (Cacciari & Clementini 2003 [C]); slope 0.214 (Clementini 2003).
     [Fact]
     public void RelationMagnitude_Is059AtFehMinus15_ForCacciariClementini()
