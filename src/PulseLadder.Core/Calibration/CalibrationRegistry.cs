@@ -21,8 +21,9 @@ public sealed class CalibrationRegistry
     private readonly Dictionary<string, PlRelation> _relations;
     private readonly Dictionary<string, CalibrationAnchor> _anchors;
 
-    private CalibrationRegistry(IEnumerable<PlRelation> relations, IEnumerable<CalibrationAnchor> anchors, IEnumerable<PeriodColourRelation> colours)
+    private CalibrationRegistry(IEnumerable<PlRelation> relations, IEnumerable<CalibrationAnchor> anchors, IEnumerable<PeriodColourRelation> colours, IEnumerable<BandTransform> transforms)
     {
+        BandTransforms = transforms.ToList();
         _relations = relations.ToDictionary(r => r.Id, StringComparer.Ordinal);
         _anchors = anchors.ToDictionary(a => a.Id, StringComparer.Ordinal);
         PeriodColourRelations = colours.ToList();
@@ -37,6 +38,7 @@ public sealed class CalibrationRegistry
     public IReadOnlyList<PlRelation> Relations { get; }
     public IReadOnlyCollection<CalibrationAnchor> Anchors => _anchors.Values;
     public IReadOnlyList<PeriodColourRelation> PeriodColourRelations { get; }
+    public IReadOnlyList<BandTransform> BandTransforms { get; }
 
     /// <summary>LMC distance modulus anchor (Pietrzynski et al. 2019), recorded separately from the relations.</summary>
     public CalibrationAnchor Lmc => _anchors["lmc_p19"];
@@ -49,10 +51,11 @@ public sealed class CalibrationRegistry
         var errors = new List<CalibrationFileError>();
         var anchors = ParseAnchors(ReadResource("anchors.csv"), errors);
         var colours = ParsePeriodColour(ReadResource("period_colour.csv"), errors);
+        var transforms = ParseTransforms(ReadResource("band_transforms.csv"), errors);
         var relations = ParseRelations(ReadResource("relations.csv"), anchors.ToDictionary(a => a.Id), [], errors);
         if (errors.Count > 0)
             throw new InvalidOperationException("embedded calibration tables are invalid: " + string.Join("; ", errors));
-        return new CalibrationRegistry(relations, anchors, colours);
+        return new CalibrationRegistry(relations, anchors, colours, transforms);
     }
 
     internal static string ReadResource(string name)
@@ -108,7 +111,7 @@ public sealed class CalibrationRegistry
     {
         var errors = new List<CalibrationFileError>();
         var added = ParseRelations(csvText, _anchors, _relations.Keys.ToHashSet(StringComparer.Ordinal), errors);
-        return new CalibrationLoadResult(new CalibrationRegistry(Relations.Concat(added), _anchors.Values, PeriodColourRelations), errors);
+        return new CalibrationLoadResult(new CalibrationRegistry(Relations.Concat(added), _anchors.Values, PeriodColourRelations, BandTransforms), errors);
     }
 
     private static List<CalibrationAnchor> ParseAnchors(string text, List<CalibrationFileError> errors)
@@ -130,6 +133,32 @@ public sealed class CalibrationRegistry
                 Notes = row.Text("notes", errors, required: false),
             };
             if (errors.Count == before) list.Add(a);
+        }
+        return list;
+    }
+
+    private static List<BandTransform> ParseTransforms(string text, List<CalibrationFileError> errors)
+    {
+        var table = CsvTable.Parse(text, errors);
+        var list = new List<BandTransform>();
+        foreach (var row in table.Rows)
+        {
+            int before = errors.Count;
+            var t = new BandTransform
+            {
+                Id = row.Text("id", errors),
+                Target = ParseBand(row, "target", errors, required: true) ?? "",
+                Mag = ParseBand(row, "mag", errors, required: true) ?? "",
+                Color1 = ParseBand(row, "color1", errors, required: true) ?? "",
+                Color2 = ParseBand(row, "color2", errors, required: true) ?? "",
+                C0 = row.Number("c0", errors, -5, 5),
+                C1 = row.Number("c1", errors, -5, 5),
+                Scatter = row.Number("scatter", errors, 0, 1),
+                Source = row.Text("source", errors),
+                Tag = row.Text("tag", errors, required: false),
+                Notes = row.Text("notes", errors, required: false),
+            };
+            if (errors.Count == before) list.Add(t);
         }
         return list;
     }

@@ -122,3 +122,20 @@ public sealed record PeriodColourRelation
 
     public double IntrinsicColour(double logP) => A + B * logP;
 }
+
+/// <summary>A photometric transformation target = mag + c0 + c1 (color1 - color2), used for a band the star lacks.</summary>
+public sealed record BandTransform
+{
+    public required string Id { get; init; }
+    public required string Target { get; init; }
+    public required string Mag { get; init; }
+    public required string Color1 { get; init; }
+    public required string Color2 { get; init; }
+    public double C0 { get; init; }
+    public double C1 { get; init; }
+    /// <summary>Scatter of the transformation (mag), added in quadrature to the derived band's error.</summary>
+    public double Scatter { get; init; }
+    public string Source { get; init; } = "";
+    public string Tag { get; init; } = "";
+    public string Notes { get; init; } = "";
+}

@@ -9,8 +9,6 @@ namespace PulseLadder.Core.Distances;
 /// <summary>The work behind <see cref="DistanceEstimator.EstimateDistance(StarInfo, PulsatorClass, double, double, IReadOnlyList{BandFit}, DistanceSettings, CalibrationRegistry)"/>.</summary>
 internal static class DistanceComputation
 {
-    private sealed record Failure(string Reason, IReadOnlyList<string> Flags);
-
     /// <summary>A route prepared for evaluation: which star bands enter with which coefficient.</summary>
     private sealed class RouteModel
     {
@@ -51,6 +49,25 @@ internal static class DistanceComputation
             bandNames.Add(f.Band);
             mags.Add(f.IntensityMeanMag);
             errs.Add(double.IsFinite(f.IntensityMeanErr) && f.IntensityMeanErr > 0 ? f.IntensityMeanErr : 0.0);
+        }
+        if (s.DeriveMissingBands)
+        {
+            foreach (var t in registry.BandTransforms)
+            {
+                if (bandNames.Contains(t.Target)) continue;
+                int im = bandNames.IndexOf(t.Mag), i1 = bandNames.IndexOf(t.Color1), i2 = bandNames.IndexOf(t.Color2);
+                if (im < 0 || i1 < 0 || i2 < 0) continue;
+                // Error of mag + c1 (c1band - c2band) with the bands' errors combined by coefficient, plus the transform's scatter.
+                var coef = new Dictionary<int, double> { [im] = 1.0 };
+                coef[i1] = coef.GetValueOrDefault(i1) + t.C1;
+                coef[i2] = coef.GetValueOrDefault(i2) - t.C1;
+                double value = t.C0, var2 = t.Scatter * t.Scatter;
+                foreach (var (i, c) in coef) { value += c * mags[i]; var2 += c * c * errs[i] * errs[i]; }
+                bandNames.Add(t.Target);
+                mags.Add(value);
+                errs.Add(Math.Sqrt(var2));
+                flags.Add("band_derived:" + t.Id);
+            }
         }
         if (bandNames.Count == 0) return Fail("no_usable_band", flags);
 
@@ -114,12 +131,13 @@ internal static class DistanceComputation
         var ctx = new Inputs
         {
             Mags = mags.ToArray(), Errs = errs.ToArray(), PeriodDays = periodDays, SigmaP = sigmaP,
-            Ebv = ebv ?? 0, EbvErr = ebvErr ?? 0, Rv = s.Rv, RvErr = Math.Max(0, s.RvErr), Law = s.ExtinctionLaw,
+            Ebv = ebv ?? 0, EbvErr = Math.Max(0, ebvErr ?? 0), Rv = s.Rv, RvErr = Math.Max(0, s.RvErr), Law = s.ExtinctionLaw,
             Bands = bandNames.ToArray(),
         };
         var routes = EvaluateRoutes(models, ctx, feh, s, seed);
 
         int ri = models.IndexOf(reported);
+        routes[ri] = routes[ri] with { Reported = true };
         var rep = routes[ri];
         var repRel = reported.Relation;
         if (fundMethod is not null && reported.PScale != 1.0) flags.Add("period_fundamentalised:" + fundMethod);
@@ -290,7 +308,7 @@ internal static class DistanceComputation
             var rel = m.Relation;
             logPn[r] = Math.Log10(x.PeriodDays * m.PScale);
             fehVal[r] = feh ?? rel.FeHDefault;
-            fehErr[r] = feh is null ? rel.FeHDefaultErr : s.FeHErr;
+            fehErr[r] = feh is null ? rel.FeHDefaultErr : Math.Max(0, s.FeHErr);
             nominal[r] = Mu(m, x.Mags, logPn[r], x.Ebv, x.Rv, k, fehVal[r], rel.A, rel.B, rel.Gamma, m.AnchorMu, 0.0);
             budgets[r] = Budget(m, x, k, dk, logPn[r], fehVal[r], fehErr[r]);
         }

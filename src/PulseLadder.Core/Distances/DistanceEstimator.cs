@@ -41,6 +41,12 @@ public sealed record DistanceSettings
     /// period-colour relation (Tammann, Sandage &amp; Reindl 2003). Wrong for Magellanic-Cloud Cepheids (bluer).
     /// </summary>
     public bool EstimateEbvFromColour { get; init; } = true;
+    /// <summary>
+    /// Derive a band the star lacks from others with the registry's photometric transformations (e.g. V from SDSS g, r,
+    /// Jester et al. 2005), flagged band_derived:&lt;id&gt;. The derived band's errors are treated as independent of
+    /// its parent bands (a simplification when both enter one Wesenheit index).
+    /// </summary>
+    public bool DeriveMissingBands { get; init; } = true;
     /// <summary>Error assumed for a star-list [Fe/H] (dex; the star list carries no error column).</summary>
     public double FeHErr { get; init; } = 0.15;
     /// <summary>Compute routes with every usable relation of the class, not only the chosen relation's family.</summary>
@@ -103,6 +109,8 @@ public sealed record DistanceRoute
     /// <summary>Change of mu when R_V rises by its 1-sigma error (signed; fully correlated between stars).</summary>
     public double RvSensitivity { get; init; }
     public IReadOnlyList<string> Flags { get; init; } = [];
+    /// <summary>True for the route the star's result reports.</summary>
+    public bool Reported { get; init; }
 }
 
 /// <summary>Output of <see cref="DistanceEstimator.EstimateDistance"/>; FailureReason set when no distance is possible.</summary>

@@ -5,12 +5,13 @@ namespace PulseLadder.Core.Tests.Calibration;
 
 public class CalibrationRegistryTests
 {
+    // Build contract: Data/** is embedded with LogicalName PulseLadder.Core.Data.%(RecursiveDir)%(Filename)%(Extension).
     [Fact]
     public void ManifestResourceNames_ContainEveryCalibrationTable_WhenBuilt()
     {
         var names = typeof(CalibrationRegistry).Assembly.GetManifestResourceNames()
             .Select(n => n.Replace('\\', '/')).ToHashSet();
-        foreach (var f in new[] { "relations.csv", "anchors.csv", "period_colour.csv", "extinction_coefficients.csv" })
+        foreach (var f in new[] { "relations.csv", "anchors.csv", "period_colour.csv", "extinction_coefficients.csv", "band_transforms.csv" })
             Assert.Contains("PulseLadder.Core.Data.calibration/" + f, names);
     }
 
@@ -66,6 +67,33 @@ public class CalibrationRegistryTests
         Assert.Equal(-0.5510, k.RelationMagnitude(Math.Log10(0.566868), -1.5), 1e-3);
     }
 
+    // SCIENCE.md 3.3 row T1 (Matsunaga et al. 2006): M_Ks = -2.41 log P - 1.11 -> -1.53 at 1.5 d, -3.94 at 15 d [X].
+    [Fact]
+    public void RelationMagnitude_MatchesScienceT1_ForMatsunaga2006()
+    {
+        Assert.True(CalibrationRegistry.Embedded.TryGet("matsunaga2006_ks", out var t));
+        Assert.Equal(-1.53, t.RelationMagnitude(Math.Log10(1.5), 0), 0.005);
+        Assert.Equal(-3.94, t.RelationMagnitude(Math.Log10(15), 0), 0.005);
+    }
+
+    // SCIENCE.md 3.1 M(logP=1) column [X]: Fouque 2007 V -3.953, K -5.647, W -5.891; Persson 2004 K 16.051 - 3.281
+    // -> 12.770 apparent, -5.707 absolute with mu_LMC = 18.477.
+    [Fact]
+    public void RelationMagnitude_MatchesScienceMAtLogP1_ForPivotStoredRelations()
+    {
+        var reg = CalibrationRegistry.Embedded;
+        Assert.True(reg.TryGet("fouque2007_v", out var v));
+        Assert.True(reg.TryGet("fouque2007_k", out var k));
+        Assert.True(reg.TryGet("fouque2007_wvi", out var w));
+        Assert.True(reg.TryGet("persson2004_k", out var pk));
+        Assert.Equal(-3.953, v.RelationMagnitude(1, 0), 1e-9);
+        Assert.Equal(-1.275, v.RelationMagnitude(0, 0), 1e-9);
+        Assert.Equal(-5.647, k.RelationMagnitude(1, 0), 1e-9);
+        Assert.Equal(-5.891, w.RelationMagnitude(1, 0), 1e-9);
+        Assert.Equal(16.051, pk.RelationMagnitude(0, -0.35), 1e-9);
+        Assert.Equal(-5.707, pk.RelationMagnitude(1, -0.35) - reg.Lmc.Mu!.Value, 1e-3);
+    }
+
     // SCIENCE.md CV-30(c): M_V(RR) = 0.59 at [Fe/H] = -1.5 (Cacciari & Clementini 2003 [C]); slope 0.214 (Clementini 2003).
     [Fact]
     public void RelationMagnitude_Is059AtFehMinus15_ForCacciariClementini()
@@ -75,6 +103,7 @@ public class CalibrationRegistryTests
         Assert.Equal(0.59 + 0.214 * 0.5, r.RelationMagnitude(Math.Log10(0.55), -1.0), 1e-9);
     }
 
+    // Policy documented in docs/calibrations.md (default relation per class and bands).
     [Fact]
     public void Default_PrefersWesenheit_ForCepheidWithVAndI()
     {
@@ -89,6 +118,7 @@ public class CalibrationRegistryTests
 
     private const string Header = "id,family,class,kind,mag,color1,color2,wesenheit_r,a,a_err,b,b_err,p0,gamma,gamma_err,metallicity_scale,z_ref,feh_default,feh_default_err,alpha_fe,scatter,logp_min,logp_max,period_mode,anchor,source,table,tag,notes";
 
+    // Contract: administrators add relations as CSV rows (docs/calibrations.md).
     [Fact]
     public void WithUserRelations_AddsRelation_WhenRowIsValid()
     {
@@ -101,6 +131,7 @@ public class CalibrationRegistryTests
         Assert.False(CalibrationRegistry.Embedded.TryGet("my_w_vi", out _));
     }
 
+    // Contract: validation errors name the 1-based line and the column (docs/calibrations.md).
     [Fact]
     public void WithUserRelations_ReportsLineAndField_WhenValuesAreBad()
     {

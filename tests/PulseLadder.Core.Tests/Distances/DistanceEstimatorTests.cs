@@ -112,6 +112,7 @@ public class DistanceEstimatorTests
         Assert.Equal("none", r.EbvSource);
     }
 
+    // Contract (docs/distances.md, route preference policy): all routes of the family side by side, one reported.
     [Fact]
     public void EstimateDistance_ComputesAllRoutes_AndReportsByPreference()
     {
@@ -120,6 +121,7 @@ public class DistanceEstimatorTests
         var wes = DistanceEstimator.EstimateDistance(star, PulsatorClass.ClassicalCepheidFundamental, 10, 0.001, fits, new DistanceSettings { MonteCarloDraws = 200 });
         Assert.Equal(["benedict2007_i", "benedict2007_k", "benedict2007_v", "benedict2007_wvi"], wes.Routes.Select(r => r.RelationId).Order().ToArray());
         Assert.Equal("benedict2007_wvi", wes.RelationId);
+        Assert.Equal("benedict2007_wvi", Assert.Single(wes.Routes, r => r.Reported).RelationId);
         Assert.Contains("band_substituted:Ks->K", wes.Routes.Single(r => r.RelationId == "benedict2007_k").Flags);
         var red = DistanceEstimator.EstimateDistance(star, PulsatorClass.ClassicalCepheidFundamental, 10, 0.001, fits,
             new DistanceSettings { MonteCarloDraws = 200, RoutePreference = RoutePreference.ReddeningCorrectedFirst });
@@ -147,6 +149,7 @@ public class DistanceEstimatorTests
         Assert.Contains("ebv_from_period_colour", r.Flags);
     }
 
+    // Contract: E(B-V) precedence star list > field default > period-colour (docs/distances.md); value from CV-26.
     [Fact]
     public void EstimateDistance_UsesFieldDefaultEbv_WhenStarHasNone()
     {
@@ -171,6 +174,7 @@ public class DistanceEstimatorTests
         Assert.Equal(0.40190, rrc.PeriodUsedDays, 1e-4);
     }
 
+    // Benedict 2007 calibrators span log P 0.57-1.55 (relations.csv, M): P = 1.5 d lies below, 10 d inside.
     [Fact]
     public void EstimateDistance_FlagsExtrapolation_OutsidePeriodRange()
     {
@@ -182,6 +186,7 @@ public class DistanceEstimatorTests
         Assert.DoesNotContain("period_extrapolated", inside.Flags);
     }
 
+    // Contract: expected failures are values with a reason code (docs/distances.md).
     [Theory]
     [InlineData(PulsatorClass.Unknown, "unclassified")]
     [InlineData(PulsatorClass.NotVariable, "not_variable")]
@@ -192,6 +197,7 @@ public class DistanceEstimatorTests
         Assert.Equal(reason, r.FailureReason);
     }
 
+    // Contract: failure reason codes (docs/distances.md).
     [Fact]
     public void EstimateDistance_FailsWithReason_WhenBandsOrReddeningMissing()
     {
@@ -204,6 +210,7 @@ public class DistanceEstimatorTests
         Assert.Equal("unknown_relation", unknown.FailureReason);
     }
 
+    // Contract: seeded, reproducible, System.Text.Json-serialisable without NaN (HELPER-RULES, ARCHITECTURE "Numbers").
     [Fact]
     public void EstimateDistance_IsDeterministic_AndSerialisesWithoutNaN()
     {
@@ -228,6 +235,7 @@ public class DistanceEstimatorTests
         Assert.Equal(s, JsonSerializer.Deserialize<DistanceSettings>(JsonSerializer.Serialize(s)));
     }
 
+    // The stage applies A = (A/A_V)(lambda_eff) R_V E(B-V) (SCIENCE 5.1) with the law chosen in settings.
     [Theory]
     [InlineData(ExtinctionLaw.Ccm89)]
     [InlineData(ExtinctionLaw.Odonnell94)]

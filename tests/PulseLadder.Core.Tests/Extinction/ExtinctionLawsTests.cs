@@ -13,6 +13,11 @@ public class ExtinctionLawsTests
     [InlineData(1.60, 0.1896)]
     [InlineData(0.44, 1.3245)]
     [InlineData(0.5495, 1.0000)]
+    [InlineData(0.365, 1.5569)] // SCIENCE.md 4.2 table, CCM formula column [X]
+    [InlineData(0.550, 0.9989)]
+    [InlineData(0.700, 0.7502)]
+    [InlineData(0.800, 0.5975)]
+    [InlineData(1.65, 0.1804)]
     public void AOverAv_MatchesCv9_ForCcm89AtRv31(double lambda, double expected)
         => Assert.Equal(expected, ExtinctionLaws.AOverAv(ExtinctionLaw.Ccm89, lambda, 3.1), 5e-4);
 
@@ -21,10 +26,13 @@ public class ExtinctionLawsTests
     [InlineData(0.44, 1.3222)]
     [InlineData(0.70, 0.7538)]
     [InlineData(0.80, 0.6079)]
+    [InlineData(0.365, 1.5364)] // SCIENCE.md 4.2 table, O'Donnell column [X]
+    [InlineData(0.550, 0.9987)]
+    [InlineData(0.900, 0.4789)]
     public void AOverAv_MatchesCv10_ForOdonnell94AtRv31(double lambda, double expected)
         => Assert.Equal(expected, ExtinctionLaws.AOverAv(ExtinctionLaw.Odonnell94, lambda, 3.1), 5e-4);
 
-    // SCIENCE.md 4.2 table, O'Donnell column at U (0.365 um) and R (0.700) [X]; the infrared part is CCM89's.
+    // SCIENCE.md 4.1: O'Donnell 1994 replaces only the optical polynomial (1.1 < x <= 3.3); the infrared part is CCM89's.
     [Fact]
     public void AOverAv_EqualsCcm_InInfraredForOdonnell94()
         => Assert.Equal(ExtinctionLaws.AOverAv(ExtinctionLaw.Ccm89, 2.2, 3.1), ExtinctionLaws.AOverAv(ExtinctionLaw.Odonnell94, 2.2, 3.1), 12);
