@@ -162,3 +162,28 @@ public sealed class ClippingAndOffsetTests
         Assert.Contains(LightCurveFitter.FitBands(withNan, 3.0, Fit, Clean).Clipped, r => r.ObservationId == 99 && r.Reason == "non_finite");
     }
 }
+
+public sealed class NoNaNTests
+{
+    [Theory]
+    [InlineData(0.0)]     // exactly constant star
+    [InlineData(1e-9)]    // vanishing signal
+    [InlineData(0.3)]
+    public void FitBands_ProducesNoNaN_EvenForConstantStar(double amplitude)
+    {
+        var pts = FourierFitTests.Sample(ph => 12 + amplitude * Math.Sin(2 * Math.PI * ph), 2.2, 80);
+        var fit = LightCurveFitter.FitBands(pts, 2.2, new FitSettings(), new CleaningSettings()).Fits.Single();
+        foreach (var prop in typeof(BandFit).GetProperties())
+        {
+            object? v = prop.GetValue(fit);
+            if (v is double d) Assert.True(double.IsFinite(d), prop.Name);
+            if (v is double[] arr) Assert.All(arr, x => Assert.True(double.IsFinite(x), prop.Name));
+        }
+        if (amplitude == 0)
+        {
+            var s = PulseLadder.Core.Classification.Classifier.Classify(new("x", "f", PulseLadder.Core.Quantities.SkyPosition.FromDegrees(10, 10)),
+                new PulseLadder.Core.PeriodSearch.PeriodEstimate { PeriodDays = 2.2 }, null, [fit], null);
+            Assert.Equal(PulseLadder.Core.Photometry.PulsatorClass.NotVariable, s.Class);
+        }
+    }
+}
