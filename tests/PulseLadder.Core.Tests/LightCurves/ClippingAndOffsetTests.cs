@@ -187,3 +187,28 @@ public sealed class NoNaNTests
         }
     }
 }
+
+public sealed class BadNightTests
+{
+    [Fact]
+    public void FitBands_ClipsSingleOutlier_WithoutRejectingItsNight()
+    {
+        // 25 nights x 4 points, 0.01 mag noise; one point of one night is off by 0.3 mag: a clipped point, not a bad night.
+        const double period = 7.3;
+        var rng = new Random(3);
+        var pts = new List<LightCurvePoint>();
+        long id = 1;
+        for (int night = 0; night < 25; night++)
+            for (int k = 0; k < 4; k++)
+            {
+                double t = 2455000.0 + night * period * 1.6180339887 + k * 0.03;
+                double ph = ((t - 2455000.0) / period) % 1.0;
+                double m = 14 + 0.4 * Math.Cos(2 * Math.PI * ph) + 0.15 * Math.Cos(4 * Math.PI * ph + 1) + 0.01 * (rng.NextDouble() - 0.5) * 3.4;
+                if (id == 42) m += 0.3;
+                pts.Add(new LightCurvePoint(id++, t, "V", m, 0.01, "obs"));
+            }
+        var outcome = LightCurveFitter.FitBands(pts, period, new FitSettings(), new CleaningSettings());
+        var r = Assert.Single(outcome.Clipped);
+        Assert.Equal((42L, "clipped"), (r.ObservationId, r.Reason));
+    }
+}
