@@ -90,6 +90,17 @@ public sealed class ClippingAndOffsetTests
         var kb = outcome.Kept.First(p => p.Observer == "B");
         Assert.Equal(kb.Mag - b.Offset, outcome.CorrectedMag(kb), 1e-12);
         Assert.Equal(pts.Single(p => p.ObservationId == kb.ObservationId).Mag, kb.Mag);
+        var corrected = outcome.CorrectedPoints();
+        Assert.Equal(outcome.Kept.Count, corrected.Count);
+        Assert.Equal(kb.Mag - b.Offset, corrected.Single(p => p.ObservationId == kb.ObservationId).Mag, 1e-12);
+        // After correction all observers follow the one curve: residual rms close to the noise.
+        double rms = Math.Sqrt(corrected.Average(p =>
+        {
+            double ph = ((p.Bjd - fit.PhaseZeroBjd) / period) % 1.0;
+            double r = p.Mag - fit.Evaluate(ph < 0 ? ph + 1 : ph);
+            return r * r;
+        }));
+        Assert.InRange(rms, 0.005, 0.02);
     }
 
     [Fact]
