@@ -112,15 +112,18 @@ public static class Classifier
         return (PulsatorClass.OtherVariable, 0.6);
     }
 
-    /// <summary>Own Fourier fit of I, else V, else the band with most points; template fits only as a last resort.</summary>
+    // I and V carry the thresholds below; SDSS i and r are their nearest neighbours.
+    private static readonly string[] PreferredBands = ["I", "V", "i", "r"];
+
+    /// <summary>Own Fourier fit of I, else V, i, r, else the band with most points; template fits only as a last resort.</summary>
     private static BandFit? PickBand(IReadOnlyList<BandFit> fits)
     {
         var own = fits.Where(f => f.Model == "fourier" && f.Order >= 1).ToList();
         var pool = own.Count > 0 ? own : fits.Where(f => f.Points > 0).ToList();
         if (pool.Count == 0) return null;
-        return pool.FirstOrDefault(f => f.Band == "I")
-            ?? pool.FirstOrDefault(f => f.Band == "V")
-            ?? pool.OrderByDescending(f => f.Points).First();
+        foreach (var preferred in PreferredBands)
+            if (pool.FirstOrDefault(f => f.Band == preferred) is { } hit) return hit;
+        return pool.OrderByDescending(f => f.Points).First();
     }
 
     /// <summary>

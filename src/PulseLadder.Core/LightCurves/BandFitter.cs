@@ -87,7 +87,8 @@ internal static class BandFitter
             for (int j = 0; j < b.N; j++) if (r.Active[j]) keptIdx.Add(b.Index[j]);
             var flags = new List<string>(r.Flags);
             if (baseline < periodDays) flags.Add("period_exceeds_baseline");
-            var (c, s) = FourierSeries.Shift(r.Cos, r.Sin, (phaseZero - t0) / periodDays);
+            double delta = (phaseZero - t0) / periodDays;
+            var (c, s) = FourierSeries.Shift(r.Cos, r.Sin, delta - Math.Floor(delta)); // whole cycles dropped for precision
             fits.Add(r.Fit with { PhaseZeroBjd = phaseZero, Cos = c, Sin = s, Flags = flags });
         }
         keptIdx.Sort();
@@ -602,7 +603,7 @@ internal static class BandFitter
     }
 
     // Nights = runs of one observer's points without a gap of NightGapDays. A night of >= 3 points is bad when its
-    // rms normalised residual exceeds BadNightFactor times the median night's (or the robust scale when fewer than
+    // robust rms normalised residual exceeds BadNightFactor times the median night's (or the robust scale when fewer than
     // three such nights exist), and at most a third of the nights may be bad (otherwise "bad" is the norm).
     private static bool FlagBadNights(BandData b, double[] z, bool[] active, bool[] badNight)
     {
@@ -620,7 +621,9 @@ internal static class BandFitter
         }
         var multi = nights.Where(n => n.Count >= 3).ToList();
         if (multi.Count == 0) return false;
-        var rms = multi.Select(n => Math.Sqrt(n.Average(j => z[j] * z[j]))).ToList();
+        // Robust night rms sqrt(median z^2): one outlier in a night is clipping's business, not a bad night, while
+        // a night with most points off (scatter or a zero-point jump) stands out.
+        var rms = multi.Select(n => Math.Sqrt(Median(n.Select(j => z[j] * z[j]).ToList()))).ToList();
         double typical;
         if (multi.Count >= 3) typical = Median(rms.ToList());
         else typical = RobustScale(z, active).Scale;

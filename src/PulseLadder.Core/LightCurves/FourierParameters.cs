@@ -24,7 +24,7 @@ internal static class FourierParameters
     {
         if (cos.Length < k) return null;
         double a1 = Math.Sqrt(cos[0] * cos[0] + sin[0] * sin[0]);
-        if (a1 == 0) return null;
+        if (!(a1 > 0)) return null;
         double ak = Math.Sqrt(cos[k - 1] * cos[k - 1] + sin[k - 1] * sin[k - 1]);
         double phi = SinePhase(cos[k - 1], sin[k - 1]) - k * SinePhase(cos[0], sin[0]);
         return (ak / a1, Wrap(phi));
@@ -67,6 +67,8 @@ internal static class FourierParameters
                 vr += gR[i] * c * gR[j];
                 vp += gP[i] * c * gP[j];
             }
-        return (Math.Sqrt(Math.Max(0, vr)), Math.Sqrt(Math.Max(0, vp)));
+        // A vanishing harmonic makes its phase undefined (0/0): report no error rather than NaN.
+        double re = Math.Sqrt(Math.Max(0, vr)), pe = Math.Sqrt(Math.Max(0, vp));
+        return (double.IsFinite(re) ? re : 0, double.IsFinite(pe) ? pe : 0);
     }
 }

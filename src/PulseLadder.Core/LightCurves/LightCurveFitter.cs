@@ -109,6 +109,14 @@ public sealed record LightCurveFitOutcome(
 
     /// <summary>Magnitude of <paramref name="p"/> on its band's reference zero point (Mag - offset).</summary>
     public double CorrectedMag(LightCurvePoint p) => p.Mag - OffsetFor(p.Band, p.Observer);
+
+    /// <summary>The kept points with their observer offsets applied (for folded plots and exports).</summary>
+    public IReadOnlyList<LightCurvePoint> CorrectedPoints()
+    {
+        var map = new Dictionary<(string, string), double>();
+        foreach (var o in Offsets) map[(o.Band, o.Observer)] = o.Offset;
+        return Kept.Select(p => map.TryGetValue((p.Band, p.Observer), out double d) ? p with { Mag = p.Mag - d } : p).ToList();
+    }
 }
 
 /// <summary>Stage "fold and fit": per-band Fourier fits at the chosen period, with model-based clipping.</summary>

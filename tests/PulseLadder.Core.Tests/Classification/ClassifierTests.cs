@@ -49,6 +49,25 @@ public sealed class ClassifierTests
         Assert.InRange(s.Confidence, 0.5, 1.0);
     }
 
+    public static TheoryData<string, string> Stripe82()
+    {
+        var d = new TheoryData<string, string>();
+        foreach (var r in OgleData.Catalogue("stripe82-rrlyrae/catalogue.csv")) d.Add(r["id"], r["type"]);
+        return d;
+    }
+
+    [Theory]
+    [MemberData(nameof(Stripe82))]
+    public void Classify_SuggestsSesarType_ForStripe82RRLyrae(string id, string type)
+    {
+        // Sesar et al. 2010 types (ab / c), SDSS ugriz at the catalogue period.
+        var row = OgleData.Catalogue("stripe82-rrlyrae/catalogue.csv").Single(r => r["id"] == id);
+        var fits = LightCurveFitter.FitBands(OgleData.Stripe82Points(row), row.D("period_d"), new FitSettings(), new CleaningSettings()).Fits;
+        var s = Classifier.Classify(Anon, new PeriodEstimate { PeriodDays = row.D("period_d") }, null, fits, null);
+        Assert.Equal(type == "ab" ? PulsatorClass.RRLyraeAB : PulsatorClass.RRLyraeC, s.Class);
+        Assert.Contains(s.Reasons, r => r.StartsWith("band i", StringComparison.Ordinal));
+    }
+
     [Fact]
     public void Classify_UsesFieldPlPosition_ForTypeIICepheid()
     {

@@ -90,6 +90,17 @@ public sealed class ClippingAndOffsetTests
         var kb = outcome.Kept.First(p => p.Observer == "B");
         Assert.Equal(kb.Mag - b.Offset, outcome.CorrectedMag(kb), 1e-12);
         Assert.Equal(pts.Single(p => p.ObservationId == kb.ObservationId).Mag, kb.Mag);
+        var corrected = outcome.CorrectedPoints();
+        Assert.Equal(outcome.Kept.Count, corrected.Count);
+        Assert.Equal(kb.Mag - b.Offset, corrected.Single(p => p.ObservationId == kb.ObservationId).Mag, 1e-12);
+        // After correction all observers follow the one curve: residual rms close to the noise.
+        double rms = Math.Sqrt(corrected.Average(p =>
+        {
+            double ph = ((p.Bjd - fit.PhaseZeroBjd) / period) % 1.0;
+            double r = p.Mag - fit.Evaluate(ph < 0 ? ph + 1 : ph);
+            return r * r;
+        }));
+        Assert.InRange(rms, 0.005, 0.02);
     }
 
     [Fact]
@@ -160,5 +171,55 @@ public sealed class ClippingAndOffsetTests
         // Non-finite points are reported, not thrown on.
         var withNan = shortSpan.Append(new LightCurvePoint(99, double.NaN, "V", 10, 0.01, "")).ToList();
         Assert.Contains(LightCurveFitter.FitBands(withNan, 3.0, Fit, Clean).Clipped, r => r.ObservationId == 99 && r.Reason == "non_finite");
+    }
+}
+
+public sealed class NoNaNTests
+{
+    [Theory]
+    [InlineData(0.0)]     // exactly constant star
+    [InlineData(1e-9)]    // vanishing signal
+    [InlineData(0.3)]
+    public void FitBands_ProducesNoNaN_EvenForConstantStar(double amplitude)
+    {
+        var pts = FourierFitTests.Sample(ph => 12 + amplitude * Math.Sin(2 * Math.PI * ph), 2.2, 80);
+        var fit = LightCurveFitter.FitBands(pts, 2.2, new FitSettings(), new CleaningSettings()).Fits.Single();
+        foreach (var prop in typeof(BandFit).GetProperties())
+        {
+            object? v = prop.GetValue(fit);
+            if (v is double d) Assert.True(double.IsFinite(d), prop.Name);
+            if (v is double[] arr) Assert.All(arr, x => Assert.True(double.IsFinite(x), prop.Name));
+        }
+        if (amplitude == 0)
+        {
+            var s = PulseLadder.Core.Classification.Classifier.Classify(new("x", "f", PulseLadder.Core.Quantities.SkyPosition.FromDegrees(10, 10)),
+                new PulseLadder.Core.PeriodSearch.PeriodEstimate { PeriodDays = 2.2 }, null, [fit], null);
+            Assert.Equal(PulseLadder.Core.Photometry.PulsatorClass.NotVariable, s.Class);
+        }
+    }
+}
+
+public sealed class BadNightTests
+{
+    [Fact]
+    public void FitBands_ClipsSingleOutlier_WithoutRejectingItsNight()
+    {
+        // 25 nights x 4 points, 0.01 mag noise; one point of one night is off by 0.3 mag: a clipped point, not a bad night.
+        const double period = 7.3;
+        var rng = new Random(3);
+        var pts = new List<LightCurvePoint>();
+        long id = 1;
+        for (int night = 0; night < 25; night++)
+            for (int k = 0; k < 4; k++)
+            {
+                double t = 2455000.0 + night * period * 1.6180339887 + k * 0.03;
+                double ph = ((t - 2455000.0) / period) % 1.0;
+                double m = 14 + 0.4 * Math.Cos(2 * Math.PI * ph) + 0.15 * Math.Cos(4 * Math.PI * ph + 1) + 0.01 * (rng.NextDouble() - 0.5) * 3.4;
+                if (id == 42) m += 0.3;
+                pts.Add(new LightCurvePoint(id++, t, "V", m, 0.01, "obs"));
+            }
+        var outcome = LightCurveFitter.FitBands(pts, period, new FitSettings(), new CleaningSettings());
+        var r = Assert.Single(outcome.Clipped);
+        Assert.Equal((42L, "clipped"), (r.ObservationId, r.Reason));
     }
 }
