@@ -241,7 +241,7 @@ class StarView {
       budgetTable({ statistical: d.mu_err_stat, systematic: d.mu_err_sys, ...(d.error_budget ?? {}) }, d.mu_err));
     const routes = d.routes ?? [];
     if (routes.length) {
-      box.appendChild(el('table', { style: 'margin-top:.5rem', 'aria-label': 'Distance by route' },
+      box.appendChild(el('table', { class: 'routes', style: 'margin-top:.5rem', 'aria-label': 'Distance by route' },
         el('thead', {}, el('tr', {}, ['Route', 'M', 'm', 'A', 'μ'].map((h) => el('th', { scope: 'col', text: h })))),
         el('tbody', {}, routes.map((r) => el('tr', {},
           el('td', {}, el('strong', { text: r.band }), el('div', { class: 'muted small', text: r.relation_id })), el('td', { class: 'num', text: num(r.absolute_mag, 2) }),
