@@ -2,7 +2,8 @@
 # The whole PulseLadder test suite on a fresh Debian machine: installs what the tests need (PostgreSQL, Chromium and
 # python3-astropy from Debian's packages; uPlot from the npm registry through the build), starts a throw-away
 # PostgreSQL on 127.0.0.1, reruns the reference-library comparisons, then runs every test project.
-set -euo pipefail
+set -eo pipefail
+set -u
 cd "$(dirname "$0")/.."
 ROOT=$(pwd)
 export DOTNET_CLI_TELEMETRY_OPTOUT=1 DOTNET_NOLOGO=1 PLAYWRIGHT_SKIP_BROWSER_DOWNLOAD=1
@@ -42,12 +43,19 @@ echo "== build"
 dotnet build PulseLadder.sln -c Release -nologo -v q -clp:ErrorsOnly
 
 failed=0
+summary=$(mktemp)
 for p in Kernels Core Storage Web Browser; do
   proj="tests/PulseLadder.$p.Tests"
   [ -d "$proj" ] || continue
   echo "== tests: $proj"
-  if ! dotnet test "$proj" -c Release --no-build -nologo --logger "console;verbosity=minimal" --results-directory "$ROOT/TestResults/$p"; then
+  if ! dotnet test "$proj" -c Release --no-build -nologo --logger "console;verbosity=minimal" --results-directory "$ROOT/TestResults/$p" | tee -a "$summary"; then
     failed=1
   fi
 done
+# One closing line over every project: "N passed, N failed".
+passed=$(grep -oE 'Passed: +[0-9]+' "$summary" | awk '{s+=$2} END {print s+0}')
+nfailed=$(grep -oE 'Failed: +[0-9]+' "$summary" | awk '{s+=$2} END {print s+0}')
+rm -f "$summary"
+echo "$passed passed, $nfailed failed"
+[ "$nfailed" = 0 ] || failed=1
 exit $failed

@@ -43,7 +43,7 @@ public static class DemoFiles
         sb.Append("star,field,ra_deg,dec_deg,class,ebv,ebv_err,feh\n");
         foreach (var s in data.Stars)
         {
-            string cls = data.Options.DeclareClasses && s.Class != DemoClass.Constant ? s.Class : string.Empty;
+            string cls = data.Options.DeclareClasses ? s.Class : string.Empty;
             sb.Append(s.Name).Append(',').Append(s.Field).Append(',').Append(F(s.RaDeg, "F6")).Append(',').Append(F(s.DecDeg, "F6"))
               .Append(',').Append(cls).Append(',').Append(F(s.ListedEbv, "F3")).Append(",0.020,").Append(F(s.FeH, "F2")).Append('\n');
         }
@@ -144,7 +144,7 @@ public static class DemoFiles
         sb.Append("    pulseladder upload --server URL --stars stars.csv --time-scale jd_utc --time-offset 2450000 photometry-*.csv\n\n");
         sb.Append("## Files\n\n");
         sb.Append("- `stars.csv`: star list (star, field, ra_deg, dec_deg, class, ebv, ebv_err, feh). The class column is ")
-          .Append(o.DeclareClasses ? "filled for variables" : "left empty (the pipeline classifies)")
+          .Append(o.DeclareClasses ? "filled with the true class" : "left empty (the pipeline classifies)")
           .Append("; ebv is the true E(B-V) plus a 0.02 mag error; feh is given for RR Lyrae only.\n");
         sb.Append("- `photometry-<observer>.csv`: star, time, band, mag, mag_err, observer.\n");
         sb.Append("- `truth.csv`: true class, period, fundamentalised period, epoch of maximum V light, intensity-mean B/V/I, absolute V/I, V amplitude, mu, distance, E(B-V), [Fe/H].\n");

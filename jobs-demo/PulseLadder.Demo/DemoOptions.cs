@@ -18,7 +18,7 @@ public sealed record DemoOptions
     /// <summary>Fraction of measurements turned into outliers (0.3-1 mag off), 0 to 0.1.</summary>
     public double OutlierFraction { get; init; } = 0.005;
 
-    /// <summary>Write each variable's true class into the star list's class column (default: left empty, so the classifier decides).</summary>
+    /// <summary>Write each star's true class into the star list's class column (default: left empty, so the classifier decides).</summary>
     public bool DeclareClasses { get; init; }
 
     internal void Validate()

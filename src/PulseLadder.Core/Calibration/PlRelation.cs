@@ -1,11 +1,14 @@
+using System.Text.Json.Serialization;
 using PulseLadder.Core.Photometry;
 
 namespace PulseLadder.Core.Calibration;
 
 /// <summary>Whether a relation gives absolute magnitudes or apparent LMC magnitudes (then M = m - mu_anchor).</summary>
+[JsonConverter(typeof(JsonStringEnumConverter<RelationKind>))]
 public enum RelationKind { Absolute, Apparent }
 
 /// <summary>Metallicity variable of the relation's gamma term.</summary>
+[JsonConverter(typeof(JsonStringEnumConverter<MetallicityScale>))]
 public enum MetallicityScale
 {
     /// <summary>Z = [Fe/H] in dex.</summary>

@@ -53,8 +53,6 @@ public sealed record FieldSummarySettings
     public double InflateAboveChi2Red { get; init; } = 2.0;
     /// <summary>Relation used by the stars; null: looked up by the stars' relation id in the registry.</summary>
     public PlRelation? Relation { get; init; }
-    /// <summary>R_V error used by the stars (for reporting only; the sensitivities carry it).</summary>
-    public double RvErr { get; init; } = 0.2;
 }
 
 /// <summary>One star in the period-luminosity diagram.</summary>

@@ -1,6 +1,9 @@
+using System.Text.Json.Serialization;
+
 namespace PulseLadder.Core.Extinction;
 
 /// <summary>Interstellar extinction laws PulseLadder implements (all one-parameter families in R_V).</summary>
+[JsonConverter(typeof(JsonStringEnumConverter<ExtinctionLaw>))]
 public enum ExtinctionLaw
 {
     /// <summary>Cardelli, Clayton &amp; Mathis 1989, ApJ 345, 245.</summary>
@@ -58,6 +61,13 @@ public static class ExtinctionLaws
 
     private static double Ccm(double x, double rv, bool odonnell)
     {
+        var (a, b) = CcmAB(x, odonnell);
+        return a + b / rv;
+    }
+
+    /// <summary>CCM89/O'Donnell a(x), b(x): A/A_V = a + b/R_V.</summary>
+    internal static (double A, double B) CcmAB(double x, bool odonnell)
+    {
         double a, b;
         if (x < 0.3 || x > 10.0) throw new ArgumentOutOfRangeException(nameof(x), x, "CCM89 is defined for 0.3 <= 1/lambda <= 10 um^-1");
         if (x <= 1.1)
@@ -98,7 +108,7 @@ public static class ExtinctionLaws
             a = Poly(y, -1.073, -0.628, 0.137, -0.070);
             b = Poly(y, 13.670, 4.257, -0.420, 0.374);
         }
-        return a + b / rv;
+        return (a, b);
     }
 
     private static double Poly(double y, params ReadOnlySpan<double> c)
@@ -106,5 +116,34 @@ public static class ExtinctionLaws
         double s = 0;
         for (int i = c.Length - 1; i >= 0; i--) s = s * y + c[i];
         return s;
+    }
+}
+
+/// <summary>
+/// A_lambda/A_V at one fixed wavelength as a fast function of R_V (for Monte Carlo loops): CCM89/O'Donnell are
+/// exactly a + b/R_V; F99 is linear in its anchor values, so nine precomputed spline weights suffice.
+/// </summary>
+internal sealed class FixedWavelengthLaw
+{
+    private readonly ExtinctionLaw _law;
+    private readonly double _x, _a, _b;
+    private readonly double[]? _w;
+
+    public FixedWavelengthLaw(ExtinctionLaw law, double lambdaMicron)
+    {
+        _law = law;
+        _x = 1.0 / lambdaMicron;
+        _ = ExtinctionLaws.AOverAv(law, lambdaMicron, 3.1); // validates the range once
+        if (law == ExtinctionLaw.Fitzpatrick99)
+        {
+            if (!Fitzpatrick99.IsUv(_x)) _w = Fitzpatrick99.CardinalWeights(_x);
+        }
+        else (_a, _b) = ExtinctionLaws.CcmAB(_x, law == ExtinctionLaw.Odonnell94);
+    }
+
+    public double AOverAv(double rv)
+    {
+        if (_law != ExtinctionLaw.Fitzpatrick99) return _a + _b / rv;
+        return (_w is null ? Fitzpatrick99.AOverEbvUv(_x, rv) : Fitzpatrick99.AOverEbvFromWeights(_w, rv)) / rv;
     }
 }

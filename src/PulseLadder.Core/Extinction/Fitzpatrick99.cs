@@ -43,6 +43,39 @@ internal static class Fitzpatrick99
 
     internal static ReadOnlySpan<double> KnotPositions => Knots;
 
+    /// <summary>True when x lies on the FM90 (UV) branch rather than the spline.</summary>
+    internal static bool IsUv(double x) => x >= Knots[7];
+
+    /// <summary>
+    /// Weights w_k with spline(x) = sum_k w_k y_k for any anchor values y (the natural spline is linear in them), so
+    /// that A/E(B-V) at a fixed wavelength costs nine multiply-adds per R_V.
+    /// </summary>
+    internal static double[] CardinalWeights(double x)
+    {
+        var w = new double[9];
+        Span<double> e = stackalloc double[9];
+        for (int k = 0; k < 9; k++)
+        {
+            e.Clear();
+            e[k] = 1;
+            w[k] = NaturalSpline(Knots, e, x);
+        }
+        return w;
+    }
+
+    /// <summary>A/E(B-V) from precomputed cardinal weights (x on the spline branch).</summary>
+    internal static double AOverEbvFromWeights(ReadOnlySpan<double> w, double rv)
+    {
+        Span<double> y = stackalloc double[9];
+        AnchorValues(rv, y);
+        double s = 0;
+        for (int k = 0; k < 9; k++) s += w[k] * y[k];
+        return s;
+    }
+
+    /// <summary>A/E(B-V) on the UV branch.</summary>
+    internal static double AOverEbvUv(double x, double rv) => Uv(x, rv) + rv;
+
     /// <summary>E(x - V)/E(B - V) of the FM90 form.</summary>
     private static double Uv(double x, double rv)
     {

@@ -35,6 +35,14 @@ public static class PhotometryCsv
         return Parse(reader, fileName, options);
     }
 
+    /// <summary>Streams a byte stream (see the TextReader batch overload); the stream is left open. Reads synchronously.</summary>
+    public static IngestSummary Parse(Stream stream, string fileName, PhotometryParseOptions options,
+        RowBatchHandler<PhotometryRow> onBatch, int batchSize = DefaultBatchSize)
+    {
+        using var reader = OpenText(stream);
+        return Parse(reader, fileName, options, onBatch, batchSize);
+    }
+
     /// <summary>
     /// Streams the file: accepted rows go to <paramref name="onBatch"/> in file order, at most
     /// <paramref name="batchSize"/> at a time, so memory does not grow with the file (apart from the duplicate
@@ -63,16 +71,16 @@ public static class PhotometryCsv
         {
             long line = table.LineNumber;
             // Every field is checked (not just the first bad one) so one pass lists all of a row's problems.
-            bool ok = check.TryStar(table.Field(cStar), line, Star, out string star);
+            bool ok = check.TryStar(table.Field(cStar), line, Star, out string star, out int starId);
             ok &= check.TryTime(table.Field(cTime), line, Time, out double time);
-            ok &= check.TryBand(table.Field(cBand), line, Band, out string band);
+            ok &= check.TryBand(table.Field(cBand), line, Band, out string band, out int bandId);
             ok &= check.TryMag(table.Field(cMag), line, Mag, out double mag);
             ok &= check.TryMagErr(table.Field(cErr), line, MagErr, out double err);
             var obsText = table.Field(cObs);
-            string observer = obsText.IsEmpty ? options.DefaultObserver : check.Pool(obsText);
+            string observer = obsText.IsEmpty ? check.Symbol(options.DefaultObserver, out int observerId) : check.Symbol(obsText, out observerId);
             var flagText = table.Field(cFlag);
             string? flag = flagText.IsEmpty ? null : check.Pool(flagText);
-            if (ok) ok = check.TryUnique(star, time, band, observer, line);
+            if (ok) ok = check.TryUnique(starId, time, bandId, observerId, line);
             if (!ok)
             {
                 issues.RejectedRows++;

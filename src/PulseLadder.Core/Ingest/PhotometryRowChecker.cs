@@ -8,31 +8,39 @@ internal sealed class PhotometryRowChecker
     private readonly PhotometryParseOptions _options;
     private readonly IssueCollector _issues;
     private readonly StringPool _strings = new();
+    private readonly SymbolTable _symbols = new();
     private readonly Dictionary<string, string?> _bands = new(StringComparer.Ordinal);
     private readonly Dictionary<string, string?>.AlternateLookup<ReadOnlySpan<char>> _bandLookup;
-    private readonly Dictionary<RowKey, long>? _seen;
+    private readonly DuplicateIndex? _seen;
 
     public PhotometryRowChecker(PhotometryParseOptions options, IssueCollector issues)
     {
         _options = options;
         _issues = issues;
         _bandLookup = _bands.GetAlternateLookup<ReadOnlySpan<char>>();
-        if (options.RejectDuplicates) _seen = [];
+        if (options.RejectDuplicates) _seen = new DuplicateIndex();
     }
 
+    /// <summary>Free text (flags): one instance per distinct text up to the pool's cap.</summary>
     public string Pool(ReadOnlySpan<char> text) => _strings.Get(text);
 
+    /// <summary>Identifying text (observer, plain-text star and band): interned with an id for the duplicate index.</summary>
+    public string Symbol(ReadOnlySpan<char> text, out int id) => _symbols.Intern(text, out id);
+
+    public string Symbol(string text, out int id) => _symbols.Intern(text, out id);
+
     /// <summary>Star name check (non-empty and, when a star list is given, listed). Records the error.</summary>
-    public bool TryStar(ReadOnlySpan<char> text, long line, string column, out string star)
+    public bool TryStar(ReadOnlySpan<char> text, long line, string column, out string star, out int starId)
     {
         star = string.Empty;
+        starId = -1;
         if (text.IsEmpty)
         {
             _issues.Error(IngestIssueCode.EmptyField, line, column, IngestMessages.EmptyField);
             return false;
         }
-        star = _strings.Get(text);
-        if (_options.KnownStars is { } known && !known.Contains(star))
+        star = _symbols.Intern(text, out starId);
+        if (_options.KnownStars is { } known && !IsKnown(known, star, starId))
         {
             _issues.Error(IngestIssueCode.UnknownStar, line, column, IngestMessages.UnknownStar(star));
             return false;
@@ -40,9 +48,20 @@ internal sealed class PhotometryRowChecker
         return true;
     }
 
-    public bool TryBand(ReadOnlySpan<char> text, long line, string column, out string band)
+    // Star-list membership per symbol id (0 unknown yet, 1 listed, 2 not listed): one set lookup per distinct star.
+    private byte[] _known = new byte[256];
+
+    private bool IsKnown(IReadOnlySet<string> known, string star, int id)
+    {
+        if (id >= _known.Length) Array.Resize(ref _known, Math.Max(id + 1, _known.Length * 2));
+        if (_known[id] == 0) _known[id] = known.Contains(star) ? (byte)1 : (byte)2;
+        return _known[id] == 1;
+    }
+
+    public bool TryBand(ReadOnlySpan<char> text, long line, string column, out string band, out int bandId)
     {
         band = string.Empty;
+        bandId = -1;
         if (text.IsEmpty)
         {
             _issues.Error(IngestIssueCode.EmptyField, line, column, IngestMessages.EmptyField);
@@ -59,7 +78,7 @@ internal sealed class PhotometryRowChecker
             _issues.Error(IngestIssueCode.UnknownBand, line, column, IngestMessages.UnknownBand(text));
             return false;
         }
-        band = normalised;
+        band = _symbols.Intern(normalised, out bandId);
         return true;
     }
 
@@ -106,19 +125,11 @@ internal sealed class PhotometryRowChecker
         return true;
     }
 
-    /// <summary>Duplicate check, run last (only on rows whose fields are all valid).</summary>
-    public bool TryUnique(string star, double time, string band, string observer, long line)
+    /// <summary>Duplicate check on (star, time, band, observer) ids, run last (only on rows whose fields are all valid).</summary>
+    public bool TryUnique(int starId, double time, int bandId, int observerId, long line)
     {
-        if (_seen is null) return true;
-        var key = new RowKey(star, time, band, observer);
-        if (_seen.TryGetValue(key, out long first))
-        {
-            _issues.Error(IngestIssueCode.DuplicateRow, line, null, IngestMessages.DuplicateRow(first));
-            return false;
-        }
-        _seen.Add(key, line);
-        return true;
+        if (_seen is null || _seen.TryAdd(starId, bandId, observerId, time, line, out long first)) return true;
+        _issues.Error(IngestIssueCode.DuplicateRow, line, null, IngestMessages.DuplicateRow(first));
+        return false;
     }
-
-    private readonly record struct RowKey(string Star, double Time, string Band, string Observer);
 }

@@ -25,6 +25,14 @@ public static class PlainTextPhotometry
         return Parse(reader, fileName, star, band, options);
     }
 
+    /// <summary>Streams a byte stream (see the TextReader batch overload); the stream is left open. Reads synchronously.</summary>
+    public static IngestSummary Parse(Stream stream, string fileName, string star, string band, PhotometryParseOptions options,
+        RowBatchHandler<PhotometryRow> onBatch, int batchSize = PhotometryCsv.DefaultBatchSize)
+    {
+        using var reader = PhotometryCsv.OpenText(stream);
+        return Parse(reader, fileName, star, band, options, onBatch, batchSize);
+    }
+
     /// <summary>Streams accepted rows to <paramref name="onBatch"/> (see <see cref="PhotometryCsv"/>'s batch overload).</summary>
     public static IngestSummary Parse(TextReader reader, string fileName, string star, string band, PhotometryParseOptions options,
         RowBatchHandler<PhotometryRow> onBatch, int batchSize = PhotometryCsv.DefaultBatchSize)
@@ -46,6 +54,9 @@ public static class PlainTextPhotometry
             issues.Fatal(IngestIssueCode.BadParameter, 0, PhotometryCsv.Band, IngestMessages.BadBandParameter(band ?? string.Empty));
         if (issues.Stopped) return issues.Summary(0, 0);
 
+        check.Symbol(starName, out int starId);
+        check.Symbol(bandName, out int bandId);
+        string observer = check.Symbol(options.DefaultObserver, out int observerId);
         var lines = new LineReader(reader, options.Limits.MaxLineLength);
         var batch = new PhotometryRow[Math.Min(batchSize, 1 << 20)];
         int inBatch = 0;
@@ -76,14 +87,14 @@ public static class PlainTextPhotometry
             bool ok = check.TryTime(text[tokens[0]], line, PhotometryCsv.Time, out double time);
             ok &= check.TryMag(text[tokens[1]], line, PhotometryCsv.Mag, out double mag);
             ok &= check.TryMagErr(text[tokens[2]], line, PhotometryCsv.MagErr, out double err);
-            if (ok) ok = check.TryUnique(starName, time, bandName, options.DefaultObserver, line);
+            if (ok) ok = check.TryUnique(starId, time, bandId, observerId, line);
             if (!ok)
             {
                 issues.RejectedRows++;
                 continue;
             }
             batch[inBatch++] = new PhotometryRow(starName,
-                new Observation(0, time, options.Scale, bandName, mag, err, options.DefaultObserver, null), line);
+                new Observation(0, time, options.Scale, bandName, mag, err, observer, null), line);
             accepted++;
             if (inBatch == batch.Length)
             {

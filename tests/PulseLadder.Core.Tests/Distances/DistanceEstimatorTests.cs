@@ -219,6 +219,13 @@ public class DistanceEstimatorTests
         var fail = DistanceEstimator.EstimateDistance(Star(), PulsatorClass.Unknown, 10, 0.001, fits, s);
         Assert.Contains("unclassified", JsonSerializer.Serialize(fail));
         Assert.Contains("\"RoutePreference\":\"WesenheitFirst\"", JsonSerializer.Serialize(s));
+        Assert.Contains("\"ExtinctionLaw\":\"Ccm89\"", JsonSerializer.Serialize(s));
+        Assert.Contains("\"Kind\":\"Absolute\"", ja);
+        var back = JsonSerializer.Deserialize<DistanceResult>(ja)!;
+        Assert.Equal(a.Mu, back.Mu);
+        Assert.Equal(a.Relation!.A, back.Relation!.A);
+        Assert.Equal(a.Routes.Count, back.Routes.Count);
+        Assert.Equal(s, JsonSerializer.Deserialize<DistanceSettings>(JsonSerializer.Serialize(s)));
     }
 
     [Theory]

@@ -124,6 +124,22 @@ public class PhotometryCsvDialectTests
     }
 
     [Fact]
+    public void Parse_StreamsBatchesFromBytes_WhenStreamAndHandlerGiven()
+    {
+        var bytes = Encoding.UTF8.GetBytes(CommaFile.Replace("\n", "\r\n"));
+        var stars = new List<string>();
+        var summary = PhotometryCsv.Parse(new MemoryStream(bytes), "upload.csv", JdUtc(), batch =>
+        {
+            foreach (var row in batch) stars.Add(row.Star);
+        });
+        Assert.True(summary.IsSuccess);
+        Assert.Equal(["S1", "S1", "S2"], stars);
+        var plain = PlainTextPhotometry.Parse(new MemoryStream("2455000.5 12.5 0.01\r\n"u8.ToArray()), "lc.dat", "S9", "V", JdUtc(), batch => stars.Add(batch[0].Star));
+        Assert.True(plain.IsSuccess);
+        Assert.Equal("S9", stars[^1]);
+    }
+
+    [Fact]
     public void Parse_DeliversRowsInOrderedBatches_WhenBatchHandlerGiven()
     {
         var text = Header + "\n" + string.Concat(Enumerable.Range(0, 25).Select(i => $"S1,{2455000 + i},V,12.5,0.01\n"));

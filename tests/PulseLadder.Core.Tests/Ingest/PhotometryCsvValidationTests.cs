@@ -145,6 +145,26 @@ public class PhotometryCsvValidationTests
     }
 
     [Fact]
+    public void Parse_ReportsEveryDuplicate_WhenTimesOutOfOrder()
+    {
+        // Times increasing, then an earlier repeat (binary search path), then out of order (hash path), then repeats.
+        var r = Csv(Header + "\nS1,2455003,V,12,0.01\nS1,2455005,V,12,0.01\nS1,2455003,V,12,0.01\nS1,2455004,V,12,0.01\n" +
+                    "S1,2455001,V,12,0.01\nS1,2455004,V,12,0.01\nS1,2455001,V,12,0.01\nS1,2455001,I,12,0.01\nS2,2455001,V,12,0.01\n");
+        Assert.Equal([4L, 7, 8], r.Errors.Select(e => e.Line).ToArray());
+        Assert.Equal(["duplicate of line 2 (same star, time, band and observer)", "duplicate of line 5 (same star, time, band and observer)",
+            "duplicate of line 6 (same star, time, band and observer)"], r.Errors.Select(e => e.Message).ToArray());
+        Assert.Equal(6, r.Rows.Count);
+    }
+
+    [Fact]
+    public void Parse_AcceptsRepeatedTime_WhenDuplicateCheckOff()
+    {
+        var r = Csv(Header + "\nS1,2455000.5,V,12.5,0.01\nS1,2455000.5,V,12.5,0.01\n", JdUtc() with { RejectDuplicates = false });
+        Assert.True(r.IsSuccess);
+        Assert.Equal(2, r.Rows.Count);
+    }
+
+    [Fact]
     public void Parse_ReportsUnknownStar_WhenNotInStarList()
     {
         var options = new PhotometryParseOptions(TimeScale.JdUtc, 0) { KnownStars = new HashSet<string> { "S1" } };

@@ -93,12 +93,12 @@ public sealed class TimeConversionTests
     [Fact]
     public void Convert_RejectsUtcAfterLeapTableExpiry_ButAcceptsTdb()
     {
-        // The embedded IERS list (tzdata 2025b copy) says "File expires on 28 June 2026".
-        double jd2027 = 2461406.5; // 2027-01-01
+        // The embedded IERS list (tzdata 2026f copy) says "File expires on 28 June 2027".
+        double jd2027 = 2461771.5; // 2028-01-01, past the expiry
         var r = TimeConversion.Convert(jd2027, TimeScale.JdUtc, DeltaCep);
         Assert.Null(r.BjdTdb);
         Assert.Equal("leap_table_expired", r.FailureReason);
-        Assert.Contains("2026-06-28", r.Detail);
+        Assert.Contains("2027-06-28", r.Detail);
         Assert.Equal(jd2027, TimeConversion.ToBjdTdb(jd2027, TimeScale.BjdTdb, DeltaCep));
         Assert.NotNull(TimeConversion.ToBjdTdb(jd2027, TimeScale.JdTt, DeltaCep));
     }
@@ -110,7 +110,7 @@ public sealed class TimeConversionTests
         Assert.Contains(LeapSecondTable.ResourceName, names);
         // IERS: 28 leap seconds from 1972-07-01 to 2017-01-01, plus the 1972-01-01 starting value of 10 s.
         Assert.Equal(28, LeapSecondTable.Embedded.Count);
-        Assert.Equal("2026-06-28", LeapSecondTable.JdToIsoDate(LeapSecondTable.Embedded.ExpiresJd));
+        Assert.Equal("2027-06-28", LeapSecondTable.JdToIsoDate(LeapSecondTable.Embedded.ExpiresJd));
     }
 
     [Fact]
@@ -119,7 +119,7 @@ public sealed class TimeConversionTests
         var obs = new List<Observation>
         {
             new(1, 2459000.5, TimeScale.JdUtc, "V", 4.0, 0.01, "a", null),
-            new(2, 2461406.5, TimeScale.JdUtc, "V", 4.1, 0.01, "a", null),
+            new(2, 2461771.5, TimeScale.JdUtc, "V", 4.1, 0.01, "a", null),
             new(3, 59000.0, TimeScale.MjdTt, "V", 4.2, 0.01, "a", null),
         };
         var outcome = BarycentricTime.ToBjdTdb(obs, DeltaCep);
