@@ -15,7 +15,9 @@ namespace PulseLadder.Browser.Tests;
 /// </summary>
 public class ServerFixture : IAsyncLifetime
 {
-    public const string ChromiumPath = "/usr/bin/chromium";
+    /// <summary>Debian's chromium; PULSELADDER_CHROMIUM (set by tests/run-all.sh) may name another path.</summary>
+    public static string ChromiumPath { get; } =
+        Environment.GetEnvironmentVariable("PULSELADDER_CHROMIUM") is { Length: > 0 } p ? p : "/usr/bin/chromium";
 
     private Process? _server;
     private readonly StringBuilder _serverLog = new();
@@ -43,7 +45,7 @@ public class ServerFixture : IAsyncLifetime
         if (!File.Exists(ChromiumPath))
             throw new InvalidOperationException(
                 $"Browser tests need Debian's chromium at {ChromiumPath} (apt-get install chromium); it is not there. " +
-                "Playwright's own browser download is deliberately not used.");
+                "Playwright's own browser download is deliberately not used; set PULSELADDER_CHROMIUM to use another chromium binary.");
         Environment.SetEnvironmentVariable("PLAYWRIGHT_SKIP_BROWSER_DOWNLOAD", "1");
 
         var dll = Path.Combine(AppContext.BaseDirectory, "pulseladder.dll");

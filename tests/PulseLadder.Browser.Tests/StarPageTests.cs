@@ -46,11 +46,19 @@ public sealed class StarPageTests(SeededServerFixture server) : IClassFixture<Se
         Assert.Equal(0, requestsBefore);
         await ServerFixture.ShotAsync(page, "star-2-alternate-peak");
 
+        // The spectral window is there on demand.
+        await page.Locator("#window-toggle").CheckAsync();
+        Assert.True(await page.EvaluateAsync<bool>("() => document.getElementById('pg-chart')._plot.series[2].show"));
+        await ServerFixture.ShotAsync(page, "star-2b-spectral-window");
+        await page.Locator("#window-toggle").UncheckAsync();
+
         // Clicking the periodogram itself also refolds.
+        await page.Locator("#pg-chart").ScrollIntoViewIfNeededAsync();
         var box = await page.Locator("#pg-chart .u-over").BoundingBoxAsync();
         Assert.NotNull(box);
         await page.Mouse.ClickAsync(box.X + box.Width * 0.8f, box.Y + box.Height * 0.5f);
-        Assert.NotEqual(altP, Period(await page.Locator("#fold-period").GetAttributeAsync("data-period")));
+        var hit = await page.EvaluateAsync<string>($"() => {{ const e = document.elementFromPoint({(box.X + box.Width * 0.8f).ToString(CultureInfo.InvariantCulture)}, {(box.Y + box.Height * 0.5f).ToString(CultureInfo.InvariantCulture)}); return e ? e.className + '/' + e.tagName : 'none'; }}");
+        Assert.True(altP != Period(await page.Locator("#fold-period").GetAttributeAsync("data-period")), $"clicking the periodogram did not refold (element under the pointer: {hit})");
         await second.ClickAsync();
 
         // Use that period: the decision is saved, the star reruns through the queue and the page shows the result.

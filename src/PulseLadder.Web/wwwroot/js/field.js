@@ -255,7 +255,7 @@ function renderPl() {
     }
   }
   const yLabel = corrected ? `${band || 'magnitude'}, extinction-corrected (mag)` : (band ? `mean ${band} (mag)` : 'mean magnitude');
-  scatter(box, { xLabel: 'log₁₀ period (d)', yLabel, clouds, lines, invertY: true, height: 320, xRange: [x0, x1] });
+  scatter(box, { xLabel: 'log₁₀ period (d)', yLabel, clouds, lines, invertY: true, height: 300, xRange: [x0, x1] });
   box.dataset.points = String(points.length);
 }
 

@@ -141,8 +141,9 @@ export function periodogram(container, { frequency, power, window: win, peaks = 
   u.over.addEventListener('mousedown', (e) => { downX = e.clientX; });
   u.over.addEventListener('click', (e) => {
     if (downX !== null && Math.abs(e.clientX - downX) > 3) return; // that was a zoom drag
-    const left = u.cursor.left;
-    if (left === null || left < 0) return;
+    // From the event itself: uPlot's cursor position may not have caught up with a click that came without a move.
+    const left = e.clientX - u.over.getBoundingClientRect().left;
+    if (!(left >= 0 && left <= u.over.clientWidth)) return;
     onPick?.(snapToPeak(u, left));
   });
   return u;

@@ -94,7 +94,8 @@ class StarView {
     const d = this.detail;
     const s = d.star;
     const period = d.period?.period_days ?? s.period_days ?? (d.peaks?.[0]?.period_days ?? null);
-    this.fold = period ? { period, source: 'pipeline' } : null;
+    const source = d.period?.period_days || s.period_days ? 'pipeline' : 'strongest peak (the pipeline found no significant period)';
+    this.fold = period ? { period, source } : null;
     for (const c of this.root.querySelectorAll('.chart')) c._plot?.destroy();
 
     const head = el('div', { class: 'card head' },
@@ -115,7 +116,7 @@ class StarView {
       el('label', { for: 'fold-input', class: 'toggle', text: 'Period (d)' }),
       el('input', { id: 'fold-input', type: 'number', step: 'any', min: '0', on: { keydown: (e) => { if (e.key === 'Enter') this.foldFromInput(); } } }),
       el('button', { type: 'button', on: { click: () => this.foldFromInput() } }, 'Fold'),
-      el('button', { type: 'button', id: 'fold-reset', on: { click: () => this.foldAtPeriod(this.pipelinePeriod(), 'pipeline') } }, 'Back to pipeline period'));
+      el('button', { type: 'button', id: 'fold-reset', on: { click: () => this.foldAtPeriod(this.pipelinePeriod(), this.detail.period?.period_days ? 'pipeline' : 'strongest peak') } }, 'Back to pipeline period'));
 
     const pgCard = el('section', { class: 'card', 'aria-labelledby': 'pg-title' },
       el('div', { class: 'star-head' },
@@ -144,7 +145,7 @@ class StarView {
 
     this.drawPeriodogram();
     this.drawRaw();
-    if (this.fold) this.foldAtPeriod(this.fold.period, 'pipeline');
+    if (this.fold) this.foldAtPeriod(this.fold.period, this.fold.source);
     else replace(this.root.querySelector('#fold-charts'), el('p', { class: 'empty', text: 'No period yet: click a frequency on the periodogram or type a period.' }));
   }
 
@@ -240,7 +241,7 @@ class StarView {
       budgetTable({ statistical: d.mu_err_stat, systematic: d.mu_err_sys, ...(d.error_budget ?? {}) }, d.mu_err));
     const routes = d.routes ?? [];
     if (routes.length) {
-      box.appendChild(el('table', { style: 'margin-top:.5rem', 'aria-label': 'Distance by route' },
+      box.appendChild(el('table', { class: 'routes', style: 'margin-top:.5rem', 'aria-label': 'Distance by route' },
         el('thead', {}, el('tr', {}, ['Route', 'M', 'm', 'A', 'μ'].map((h) => el('th', { scope: 'col', text: h })))),
         el('tbody', {}, routes.map((r) => el('tr', {},
           el('td', {}, el('strong', { text: r.band }), el('div', { class: 'muted small', text: r.relation_id })), el('td', { class: 'num', text: num(r.absolute_mag, 2) }),
