@@ -10,6 +10,7 @@ export DOTNET_CLI_TELEMETRY_OPTOUT=1 DOTNET_NOLOGO=1 PLAYWRIGHT_SKIP_BROWSER_DOW
 
 need=()
 command -v chromium >/dev/null 2>&1 || need+=(chromium)
+command -v npm >/dev/null 2>&1 || need+=(npm)
 ls /usr/lib/postgresql/*/bin/initdb >/dev/null 2>&1 || need+=(postgresql)
 /usr/bin/python3 -c "import astropy, numpy" >/dev/null 2>&1 || need+=(python3-astropy python3-numpy)
 if [ ${#need[@]} -gt 0 ]; then
