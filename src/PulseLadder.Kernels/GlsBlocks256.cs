@@ -1,5 +1,6 @@
 using System.Runtime.CompilerServices;
 using System.Runtime.Intrinsics;
+using System.Runtime.Intrinsics.X86;
 
 namespace PulseLadder.Kernels;
 
@@ -32,22 +33,22 @@ internal static unsafe class GlsBlocks256
             c0 += a; s0 += b;
             yc0 = Vector256.FusedMultiplyAdd(y, a, yc0); ys0 = Vector256.FusedMultiplyAdd(y, b, ys0);
             t = a * q; cc0 = Vector256.FusedMultiplyAdd(t, a, cc0); cs0 = Vector256.FusedMultiplyAdd(t, b, cs0);
-            an = Vector256.FusedMultiplyAdd(k, a, -ap); bn = Vector256.FusedMultiplyAdd(k, b, -bp); ap = a; bp = b; a = an; b = bn;
+            an = Fma.MultiplySubtract(k, a, ap); bn = Fma.MultiplySubtract(k, b, bp); ap = a; bp = b; a = an; b = bn;
 
             c1 += a; s1 += b;
             yc1 = Vector256.FusedMultiplyAdd(y, a, yc1); ys1 = Vector256.FusedMultiplyAdd(y, b, ys1);
             t = a * q; cc1 = Vector256.FusedMultiplyAdd(t, a, cc1); cs1 = Vector256.FusedMultiplyAdd(t, b, cs1);
-            an = Vector256.FusedMultiplyAdd(k, a, -ap); bn = Vector256.FusedMultiplyAdd(k, b, -bp); ap = a; bp = b; a = an; b = bn;
+            an = Fma.MultiplySubtract(k, a, ap); bn = Fma.MultiplySubtract(k, b, bp); ap = a; bp = b; a = an; b = bn;
 
             c2 += a; s2 += b;
             yc2 = Vector256.FusedMultiplyAdd(y, a, yc2); ys2 = Vector256.FusedMultiplyAdd(y, b, ys2);
             t = a * q; cc2 = Vector256.FusedMultiplyAdd(t, a, cc2); cs2 = Vector256.FusedMultiplyAdd(t, b, cs2);
-            an = Vector256.FusedMultiplyAdd(k, a, -ap); bn = Vector256.FusedMultiplyAdd(k, b, -bp); ap = a; bp = b; a = an; b = bn;
+            an = Fma.MultiplySubtract(k, a, ap); bn = Fma.MultiplySubtract(k, b, bp); ap = a; bp = b; a = an; b = bn;
 
             c3 += a; s3 += b;
             yc3 = Vector256.FusedMultiplyAdd(y, a, yc3); ys3 = Vector256.FusedMultiplyAdd(y, b, ys3);
             t = a * q; cc3 = Vector256.FusedMultiplyAdd(t, a, cc3); cs3 = Vector256.FusedMultiplyAdd(t, b, cs3);
-            an = Vector256.FusedMultiplyAdd(k, a, -ap); bn = Vector256.FusedMultiplyAdd(k, b, -bp);
+            an = Fma.MultiplySubtract(k, a, ap); bn = Fma.MultiplySubtract(k, b, bp);
 
             Vector256.Store(a, up + i); Vector256.Store(an, u + i);
             Vector256.Store(b, vp + i); Vector256.Store(bn, v + i);
@@ -81,11 +82,11 @@ internal static unsafe class GlsBlocks256
             Vector256<double> c = Vector256.Load(cd + i), s = Vector256.Load(sd + i);
             Vector256.Store(a, u + i); Vector256.Store(b, v + i);
             Vector256.Store(Vector256.FusedMultiplyAdd(a, c, b * s), up + i);
-            Vector256.Store(Vector256.FusedMultiplyAdd(b, c, -(a * s)), vp + i);
+            Vector256.Store(Fma.MultiplySubtract(b, c, a * s), vp + i);
             if (advance)
             {
                 Vector256<double> cs = Vector256.Load(cS + i), ss = Vector256.Load(sS + i);
-                Vector256.Store(Vector256.FusedMultiplyAdd(a, cs, -(b * ss)), zu + i);
+                Vector256.Store(Fma.MultiplySubtract(a, cs, b * ss), zu + i);
                 Vector256.Store(Vector256.FusedMultiplyAdd(b, cs, a * ss), zv + i);
             }
         }
