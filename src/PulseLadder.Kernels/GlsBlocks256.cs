@@ -1,5 +1,6 @@
 using System.Runtime.CompilerServices;
 using System.Runtime.Intrinsics;
+using System.Runtime.Intrinsics.X86;
 
 namespace PulseLadder.Kernels;
 
@@ -32,22 +33,22 @@ internal static unsafe class GlsBlocks256
             c0 += a; s0 += b;
             yc0 = Vector256.FusedMultiplyAdd(y, a, yc0); ys0 = Vector256.FusedMultiplyAdd(y, b, ys0);
             t = a * q; cc0 = Vector256.FusedMultiplyAdd(t, a, cc0); cs0 = Vector256.FusedMultiplyAdd(t, b, cs0);
-            an = Vector256.FusedMultiplyAdd(k, a, -ap); bn = Vector256.FusedMultiplyAdd(k, b, -bp); ap = a; bp = b; a = an; b = bn;
+            an = Fma.MultiplySubtract(k, a, ap); bn = Fma.MultiplySubtract(k, b, bp); ap = a; bp = b; a = an; b = bn;
 
             c1 += a; s1 += b;
             yc1 = Vector256.FusedMultiplyAdd(y, a, yc1); ys1 = Vector256.FusedMultiplyAdd(y, b, ys1);
             t = a * q; cc1 = Vector256.FusedMultiplyAdd(t, a, cc1); cs1 = Vector256.FusedMultiplyAdd(t, b, cs1);
-            an = Vector256.FusedMultiplyAdd(k, a, -ap); bn = Vector256.FusedMultiplyAdd(k, b, -bp); ap = a; bp = b; a = an; b = bn;
+            an = Fma.MultiplySubtract(k, a, ap); bn = Fma.MultiplySubtract(k, b, bp); ap = a; bp = b; a = an; b = bn;
 
             c2 += a; s2 += b;
             yc2 = Vector256.FusedMultiplyAdd(y, a, yc2); ys2 = Vector256.FusedMultiplyAdd(y, b, ys2);
             t = a * q; cc2 = Vector256.FusedMultiplyAdd(t, a, cc2); cs2 = Vector256.FusedMultiplyAdd(t, b, cs2);
-            an = Vector256.FusedMultiplyAdd(k, a, -ap); bn = Vector256.FusedMultiplyAdd(k, b, -bp); ap = a; bp = b; a = an; b = bn;
+            an = Fma.MultiplySubtract(k, a, ap); bn = Fma.MultiplySubtract(k, b, bp); ap = a; bp = b; a = an; b = bn;
 
             c3 += a; s3 += b;
             yc3 = Vector256.FusedMultiplyAdd(y, a, yc3); ys3 = Vector256.FusedMultiplyAdd(y, b, ys3);
             t = a * q; cc3 = Vector256.FusedMultiplyAdd(t, a, cc3); cs3 = Vector256.FusedMultiplyAdd(t, b, cs3);
-            an = Vector256.FusedMultiplyAdd(k, a, -ap); bn = Vector256.FusedMultiplyAdd(k, b, -bp);
+            an = Fma.MultiplySubtract(k, a, ap); bn = Fma.MultiplySubtract(k, b, bp);
 
             Vector256.Store(a, up + i); Vector256.Store(an, u + i);
             Vector256.Store(b, vp + i); Vector256.Store(bn, v + i);
@@ -56,6 +57,40 @@ internal static unsafe class GlsBlocks256
         Store(sums, 1, c1, s1, yc1, ys1, cc1, cs1);
         Store(sums, 2, c2, s2, yc2, ys2, cc2, cs2);
         Store(sums, 3, c3, s3, yc3, ys3, cc3, cs3);
+    }
+
+    /// <summary>
+    /// Two-frequency block for CPUs with only 16 vector registers (AVX2 without AVX-512VL), where the four-frequency
+    /// block spills accumulators to the stack and runs about 3x slower (measured with DOTNET_EnableAVX512=0).
+    /// </summary>
+    [SkipLocalsInit]
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
+    public static void Block2(double* up, double* u, double* vp, double* v, double* k2, double* yv, double* iw, int np, double* sums)
+    {
+        Vector256<double> c0 = default, s0 = default, yc0 = default, ys0 = default, cc0 = default, cs0 = default;
+        Vector256<double> c1 = default, s1 = default, yc1 = default, ys1 = default, cc1 = default, cs1 = default;
+        for (int i = 0; i < np; i += Lanes)
+        {
+            Vector256<double> a = Vector256.Load(u + i), b = Vector256.Load(v + i);
+            Vector256<double> y = Vector256.Load(yv + i), t;
+
+            c0 += a; s0 += b;
+            yc0 = Vector256.FusedMultiplyAdd(y, a, yc0); ys0 = Vector256.FusedMultiplyAdd(y, b, ys0);
+            t = a * Vector256.Load(iw + i); cc0 = Vector256.FusedMultiplyAdd(t, a, cc0); cs0 = Vector256.FusedMultiplyAdd(t, b, cs0);
+            Vector256<double> k = Vector256.Load(k2 + i);
+            Vector256<double> an = Fma.MultiplySubtract(k, a, Vector256.Load(up + i));
+            Vector256<double> bn = Fma.MultiplySubtract(k, b, Vector256.Load(vp + i));
+
+            c1 += an; s1 += bn;
+            yc1 = Vector256.FusedMultiplyAdd(y, an, yc1); ys1 = Vector256.FusedMultiplyAdd(y, bn, ys1);
+            t = an * Vector256.Load(iw + i); cc1 = Vector256.FusedMultiplyAdd(t, an, cc1); cs1 = Vector256.FusedMultiplyAdd(t, bn, cs1);
+
+            Vector256.Store(an, up + i); Vector256.Store(bn, vp + i);
+            Vector256.Store(Fma.MultiplySubtract(k, an, a), u + i);
+            Vector256.Store(Fma.MultiplySubtract(k, bn, b), v + i);
+        }
+        Store(sums, 0, c0, s0, yc0, ys0, cc0, cs0);
+        Store(sums, 1, c1, s1, yc1, ys1, cc1, cs1);
     }
 
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
@@ -81,11 +116,11 @@ internal static unsafe class GlsBlocks256
             Vector256<double> c = Vector256.Load(cd + i), s = Vector256.Load(sd + i);
             Vector256.Store(a, u + i); Vector256.Store(b, v + i);
             Vector256.Store(Vector256.FusedMultiplyAdd(a, c, b * s), up + i);
-            Vector256.Store(Vector256.FusedMultiplyAdd(b, c, -(a * s)), vp + i);
+            Vector256.Store(Fma.MultiplySubtract(b, c, a * s), vp + i);
             if (advance)
             {
                 Vector256<double> cs = Vector256.Load(cS + i), ss = Vector256.Load(sS + i);
-                Vector256.Store(Vector256.FusedMultiplyAdd(a, cs, -(b * ss)), zu + i);
+                Vector256.Store(Fma.MultiplySubtract(a, cs, b * ss), zu + i);
                 Vector256.Store(Vector256.FusedMultiplyAdd(b, cs, a * ss), zv + i);
             }
         }

@@ -1,5 +1,6 @@
 using System.Runtime.CompilerServices;
 using System.Runtime.Intrinsics;
+using System.Runtime.Intrinsics.X86;
 
 namespace PulseLadder.Kernels;
 
@@ -32,22 +33,22 @@ internal static unsafe class GlsBlocks512
             c0 += a; s0 += b;
             yc0 = Vector512.FusedMultiplyAdd(y, a, yc0); ys0 = Vector512.FusedMultiplyAdd(y, b, ys0);
             t = a * q; cc0 = Vector512.FusedMultiplyAdd(t, a, cc0); cs0 = Vector512.FusedMultiplyAdd(t, b, cs0);
-            an = Vector512.FusedMultiplyAdd(k, a, -ap); bn = Vector512.FusedMultiplyAdd(k, b, -bp); ap = a; bp = b; a = an; b = bn;
+            an = Avx512F.FusedMultiplySubtract(k, a, ap); bn = Avx512F.FusedMultiplySubtract(k, b, bp); ap = a; bp = b; a = an; b = bn;
 
             c1 += a; s1 += b;
             yc1 = Vector512.FusedMultiplyAdd(y, a, yc1); ys1 = Vector512.FusedMultiplyAdd(y, b, ys1);
             t = a * q; cc1 = Vector512.FusedMultiplyAdd(t, a, cc1); cs1 = Vector512.FusedMultiplyAdd(t, b, cs1);
-            an = Vector512.FusedMultiplyAdd(k, a, -ap); bn = Vector512.FusedMultiplyAdd(k, b, -bp); ap = a; bp = b; a = an; b = bn;
+            an = Avx512F.FusedMultiplySubtract(k, a, ap); bn = Avx512F.FusedMultiplySubtract(k, b, bp); ap = a; bp = b; a = an; b = bn;
 
             c2 += a; s2 += b;
             yc2 = Vector512.FusedMultiplyAdd(y, a, yc2); ys2 = Vector512.FusedMultiplyAdd(y, b, ys2);
             t = a * q; cc2 = Vector512.FusedMultiplyAdd(t, a, cc2); cs2 = Vector512.FusedMultiplyAdd(t, b, cs2);
-            an = Vector512.FusedMultiplyAdd(k, a, -ap); bn = Vector512.FusedMultiplyAdd(k, b, -bp); ap = a; bp = b; a = an; b = bn;
+            an = Avx512F.FusedMultiplySubtract(k, a, ap); bn = Avx512F.FusedMultiplySubtract(k, b, bp); ap = a; bp = b; a = an; b = bn;
 
             c3 += a; s3 += b;
             yc3 = Vector512.FusedMultiplyAdd(y, a, yc3); ys3 = Vector512.FusedMultiplyAdd(y, b, ys3);
             t = a * q; cc3 = Vector512.FusedMultiplyAdd(t, a, cc3); cs3 = Vector512.FusedMultiplyAdd(t, b, cs3);
-            an = Vector512.FusedMultiplyAdd(k, a, -ap); bn = Vector512.FusedMultiplyAdd(k, b, -bp);
+            an = Avx512F.FusedMultiplySubtract(k, a, ap); bn = Avx512F.FusedMultiplySubtract(k, b, bp);
 
             Vector512.Store(a, up + i); Vector512.Store(an, u + i);
             Vector512.Store(b, vp + i); Vector512.Store(bn, v + i);
@@ -81,11 +82,11 @@ internal static unsafe class GlsBlocks512
             Vector512<double> c = Vector512.Load(cd + i), s = Vector512.Load(sd + i);
             Vector512.Store(a, u + i); Vector512.Store(b, v + i);
             Vector512.Store(Vector512.FusedMultiplyAdd(a, c, b * s), up + i);
-            Vector512.Store(Vector512.FusedMultiplyAdd(b, c, -(a * s)), vp + i);
+            Vector512.Store(Avx512F.FusedMultiplySubtract(b, c, a * s), vp + i);
             if (advance)
             {
                 Vector512<double> cs = Vector512.Load(cS + i), ss = Vector512.Load(sS + i);
-                Vector512.Store(Vector512.FusedMultiplyAdd(a, cs, -(b * ss)), zu + i);
+                Vector512.Store(Avx512F.FusedMultiplySubtract(a, cs, b * ss), zu + i);
                 Vector512.Store(Vector512.FusedMultiplyAdd(b, cs, a * ss), zv + i);
             }
         }

@@ -40,6 +40,7 @@ public sealed unsafe class GlsPlan
     private Worker[] _workers = [];
     private int _n, _np, _chunkCount, _nextChunk;
     private double _yy;
+    private readonly int _blockWidth;
     private double* _out;
     private readonly Action<int> _parallelBody;
 
@@ -55,6 +56,8 @@ public sealed unsafe class GlsPlan
             throw new PlatformNotSupportedException($"GLS variant {variant} is not supported on this CPU.");
         ArgumentOutOfRangeException.ThrowIfLessThan(maxDegreeOfParallelism, 1);
         Variant = variant;
+        // Four frequencies per pass need 24 vector accumulators: fine with 32 registers (EVEX), spills with 16.
+        _blockWidth = variant == GlsVariant.Avx2 && !System.Runtime.Intrinsics.X86.Avx512F.VL.IsSupported ? 2 : GlsBlocks.Width;
         MaxDegreeOfParallelism = maxDegreeOfParallelism;
         Retarget(f0, df, count);
         _parallelBody = ParallelWorker;
@@ -201,15 +204,16 @@ public sealed unsafe class GlsPlan
                 default: GlsBlocksScalar.SegmentStart(zu, zv, _cd.Pointer, _sd.Pointer, _cS.Pointer, _sS.Pointer, up, u, vp, v, np, advance); break;
             }
             int segEnd = Math.Min(seg + SegmentLength, len);
-            for (int blk = seg; blk < segEnd; blk += GlsBlocks.Width)
+            for (int blk = seg; blk < segEnd; blk += _blockWidth)
             {
                 switch (Variant)
                 {
                     case GlsVariant.Avx512: GlsBlocks512.Block(up, u, vp, v, k2, yc, iw, np, sums); break;
+                    case GlsVariant.Avx2 when _blockWidth == 2: GlsBlocks256.Block2(up, u, vp, v, k2, yc, iw, np, sums); break;
                     case GlsVariant.Avx2: GlsBlocks256.Block(up, u, vp, v, k2, yc, iw, np, sums); break;
                     default: GlsBlocksScalar.Block(up, u, vp, v, k2, yc, iw, np, sums); break;
                 }
-                int m = Math.Min(GlsBlocks.Width, segEnd - blk);
+                int m = Math.Min(_blockWidth, segEnd - blk);
                 for (int j = 0; j < m; j++) power[k0 + blk + j] = PowerFromSums(sums + 6 * j, _yy);
             }
         }
