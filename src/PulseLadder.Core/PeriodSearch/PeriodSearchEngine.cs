@@ -73,6 +73,16 @@ internal static class PeriodSearchEngine
             .ThenByDescending(c => c.Power)
             .ToList();
 
+        Candidate? doubleCandidate = null;
+        if (modelUsable && (s.ConsiderDoublePeriod ?? cls == PulsatorClass.TypeIICepheid)
+            && DoublePeriod(data, grid, ranked[0], orders, refChi2) is { } dbl)
+        {
+            // On real RV Tau data the alternation can be genuine and still not be what a catalogue quotes, so by
+            // default the double period is listed for the reviewer, not chosen.
+            if (s.PreferDoublePeriod) { ranked.Insert(0, dbl); notes.Add("double_period_preferred"); }
+            else { doubleCandidate = dbl; notes.Add("double_period_favoured"); }
+        }
+
         double tol = Math.Max(0.5 / data.Baseline, 2 * grid.Df);
         var peaks = new List<PeriodPeak>();
         var stronger = new List<double>();
@@ -86,6 +96,15 @@ internal static class PeriodSearchEngine
                 ModelPower = mp, ModelFrequency = c.ModelChi2 is null ? null : c.ModelFrequency,
             });
             stronger.Add(c.Frequency);
+        }
+
+        if (doubleCandidate is { } dc)
+        {
+            var (fap, method) = Fap(dc.Power, data, grid);
+            peaks.Add(new PeriodPeak(dc.Frequency, dc.Power, fap, method, AliasLabels.For(dc.Frequency, stronger, tol))
+            {
+                ModelPower = Math.Clamp(1 - dc.ModelChi2!.Value / chiRef, 0, 1), ModelFrequency = dc.ModelFrequency,
+            });
         }
 
         var offsets = modelUsable && ranked[0].ModelChi2 is not null
@@ -106,7 +125,9 @@ internal static class PeriodSearchEngine
         if (grid.Count <= 30L * plotIdx.Length) SpectralTools.WindowOnGrid(data.AllT, grid.F0, grid.Df, plotIdx, wy);
         else SpectralTools.Window(data.AllT, plot.X, wy);
 
-        double bestFap = bootFap ?? peaks[0].Fap ?? 1.0;
+        // Detection asks whether any listed peak is significant; which of them is the period is the ranking's job
+        // (a preferred double period has little single-sinusoid power of its own).
+        double bestFap = bootFap ?? peaks.Min(p => p.Fap ?? 1.0);
         return result with
         {
             FailureReason = bestFap > s.MaxFalseAlarmProbability ? "no_significant_period" : null,
@@ -118,6 +139,38 @@ internal static class PeriodSearchEngine
             BootstrapSamples = Math.Max(0, s.BootstrapSamples),
             Notes = notes,
         };
+    }
+
+    /// <summary>
+    /// RV Tauri stars alternate deep and shallow minima: the strongest peak is then at twice the formal frequency.
+    /// The model at f/2 with twice the harmonics contains the model at f exactly (nested), so it is preferred only
+    /// when BIC says the extra (odd half-) harmonics are real: chi2 drop > sum_b (extra parameters_b) ln N_b, with chi2
+    /// in units of the residual variance (scaled by max(1, chi2_red)).
+    /// </summary>
+    private static Candidate? DoublePeriod(SearchData data, FrequencyGrid grid, Candidate best, int[] orders, double[] refChi2)
+    {
+        if (best.ModelChi2 is not { } parentChi2) return null;
+        double fh = best.ModelFrequency / 2;
+        if (fh < grid.F0) return null;
+        var doubled = new int[orders.Length];
+        double penalty = 0;
+        for (int b = 0; b < orders.Length; b++)
+        {
+            if (orders[b] <= 0) continue;
+            int k2 = HarmonicFit.SupportedHarmonics(data.Bands[b], 2 * orders[b]);
+            if (k2 < 2 * orders[b]) return null;
+            doubled[b] = k2;
+            penalty += 2 * (k2 - orders[b]) * Math.Log(data.Bands[b].Count);
+        }
+        var (x, v) = Brent.Minimize(f => HarmonicFit.TotalChi2(data.Bands, doubled, refChi2, f), fh - grid.Df, fh + grid.Df, grid.Df * 1e-3);
+        // Residual chi2 per degree of freedom of the larger model scales the test: real light curves with
+        // cycle-to-cycle changes leave structured residuals that extra harmonics always reduce a little.
+        int dof = 0;
+        for (int b = 0; b < orders.Length; b++)
+            if (orders[b] > 0) dof += data.Bands[b].Count - HarmonicFit.ParamCount(doubled[b], data.Bands[b].Observers.Length);
+        double scale = dof > 0 ? Math.Max(1, v / dof) : double.PositiveInfinity;
+        if (!(parentChi2 - v > penalty * scale)) return null;
+        return new Candidate(x, CombinedPowerAt(data, x)) { ModelFrequency = x, ModelChi2 = v };
     }
 
     private static Curve Thinned(double[] power, FrequencyGrid grid, int[] idx)
