@@ -52,7 +52,7 @@ public class AliasRecoveryRRLyraeTests(ITestOutputHelper output) : AliasRecovery
     [Fact]
     public void FindPeriods_RecoversTruePeriodIn97Percent_OfSyntheticRRab()
     {
-        var r = Run(SyntheticCampaign.Kind.RRab, PulsatorClass.RRLyraeAB, 50, 2000);
+        var r = Run(SyntheticCampaign.Kind.RRab, PulsatorClass.RRLyraeAB, 40, 2000);
         Report("RRab P 0.45-0.8 d", r);
         Assert.True(r.Ok >= 0.97 * r.N, $"{r.Ok}/{r.N}");
     }
@@ -60,7 +60,7 @@ public class AliasRecoveryRRLyraeTests(ITestOutputHelper output) : AliasRecovery
     [Fact]
     public void FindPeriods_RecoversTruePeriodIn97Percent_OfSyntheticRRc()
     {
-        var r = Run(SyntheticCampaign.Kind.RRc, PulsatorClass.RRLyraeC, 50, 3000);
+        var r = Run(SyntheticCampaign.Kind.RRc, PulsatorClass.RRLyraeC, 40, 3000);
         Report("RRc P 0.28-0.42 d", r);
         Assert.True(r.Ok >= 0.97 * r.N, $"{r.Ok}/{r.N}");
     }
