@@ -15,9 +15,47 @@ internal static class PeriodSearchEngine
         public double? ModelChi2 { get; set; }
     }
 
+    /// <summary>Share of a band's chi2_0 that observer offsets must explain before the grid is searched again on
+    /// offset-corrected magnitudes (own choice: below this the raw periodogram is barely disturbed).</summary>
+    internal const double OffsetSecondPassShare = 0.10;
+
     public static PeriodSearchResult Search(IReadOnlyList<LightCurvePoint> points, PulsatorClass cls, PeriodSearchSettings s)
     {
         var data = SearchData.Prepare(points);
+        var first = SearchOnce(data, cls, s);
+        if (first.Peaks.Count == 0 || first.ObserverOffsets.Count == 0 || !OffsetsMatter(data, first.ObserverOffsets)) return first;
+
+        // The coarse grid ran on raw magnitudes; observer zero points blur it. Search again with them removed.
+        var corrected = data.WithOffsetsRemoved(first.ObserverOffsets);
+        var second = SearchOnce(corrected, cls, s);
+        if (second.Peaks.Count == 0) return first;
+        var total = second.ObserverOffsets.Select(o =>
+        {
+            double o1 = first.ObserverOffsets.FirstOrDefault(x => x.Band == o.Band && x.Observer == o.Observer)?.Offset ?? 0;
+            return o with { Offset = o.Offset + o1 };
+        }).ToArray();
+        return second with { ObserverOffsets = total, Notes = [.. second.Notes, "offsets_removed_second_pass"] };
+    }
+
+    private static bool OffsetsMatter(SearchData data, IReadOnlyList<ObserverOffset> offsets)
+    {
+        foreach (var b in data.Bands)
+        {
+            if (!(b.Chi2Mean > 0)) continue;
+            var o = new double[b.Observers.Length];
+            foreach (var x in offsets)
+                if (x.Band == b.Band) { int j = Array.IndexOf(b.Observers, x.Observer); if (j >= 0) o[j] = x.Offset; }
+            double sw = 0, swo = 0;
+            for (int i = 0; i < b.Count; i++) { sw += b.W[i]; swo += b.W[i] * o[b.Obs[i]]; }
+            double mean = swo / sw, ss = 0;
+            for (int i = 0; i < b.Count; i++) { double d = o[b.Obs[i]] - mean; ss += b.W[i] * d * d; }
+            if (ss > OffsetSecondPassShare * b.Chi2Mean) return true;
+        }
+        return false;
+    }
+
+    private static PeriodSearchResult SearchOnce(SearchData data, PulsatorClass cls, PeriodSearchSettings s)
+    {
         var result = new PeriodSearchResult
         {
             BaselineDays = data.Baseline, PointsUsed = data.Count, Seed = s.Seed,

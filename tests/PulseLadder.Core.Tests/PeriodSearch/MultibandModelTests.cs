@@ -31,6 +31,22 @@ public class MultibandModelTests
     }
 
     [Fact]
+    public void FindPeriods_SearchesAgainWithOffsetsRemoved_WhenOffsetsAreLarge()
+    {
+        // bob's zero point pushed 0.15 mag further in both bands: comparable with an RRc amplitude.
+        var star = SyntheticCampaign.Make(SyntheticCampaign.Kind.RRc, 21);
+        var pts = star.Points.Select(p => p.Observer == "bob" ? p with { Mag = p.Mag + 0.15 } : p).ToList();
+        var r = PeriodFinder.FindPeriods(pts, PulsatorClass.RRLyraeC, S with { Oversampling = 5 });
+        Assert.Contains("offsets_removed_second_pass", r.Notes);
+        Assert.Equal(1 / star.PeriodDays, r.Peaks[0].Frequency, 0.25 / r.BaselineDays);
+        var bobV = r.ObserverOffsets.Single(o => o.Band == "V" && o.Observer == "bob");
+        Assert.True(Math.Abs(bobV.Offset - (0.035 + 0.15)) < 3 * bobV.Error, $"{bobV.Offset} +- {bobV.Error}");
+        // The unmodified star does not need the second pass.
+        var plain = PeriodFinder.FindPeriods(star.Points, PulsatorClass.RRLyraeC, S with { Oversampling = 5 });
+        Assert.DoesNotContain("offsets_removed_second_pass", plain.Notes);
+    }
+
+    [Fact]
     public void FindPeriods_UsesMultibandFap_WhenTwoBands()
     {
         var star = SyntheticCampaign.Make(SyntheticCampaign.Kind.RRc, 5);
