@@ -1,6 +1,7 @@
-var builder = WebApplication.CreateBuilder(args);
-var app = builder.Build();
-app.MapGet("/health", () => "ok");
+using PulseLadder.Web;
+
+var app = PulseLadderWeb.Build(args);
 app.Run();
 
+/// <summary>Entry point, visible to WebApplicationFactory in tests.</summary>
 public partial class Program;

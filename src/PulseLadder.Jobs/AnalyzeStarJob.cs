@@ -1,0 +1,85 @@
+using System.Security.Cryptography;
+using System.Text;
+using Hangfire;
+using Microsoft.Extensions.Logging;
+using PulseLadder.Core.Photometry;
+using PulseLadder.Core.Pipeline;
+using PulseLadder.Storage;
+
+namespace PulseLadder.Jobs;
+
+/// <summary>
+/// Analyses one star at one revision: clean to distance, one transaction to store. Arguments are ids only; the job
+/// reloads everything it needs, so it can run twice (Hangfire delivers at least once) and leave one result row.
+/// </summary>
+public sealed class AnalyzeStarJob(Database db, IAnalysisQueue queue, TimeProvider clock, ILogger<AnalyzeStarJob> log)
+{
+    [Queue("analysis")]
+    [AutomaticRetry(Attempts = 3)]
+    public void Run(long starId, long revision)
+    {
+        StarRow? star;
+        IReadOnlyList<Observation> observations;
+        using (var c = db.Open())
+        {
+            star = StarStore.Get(c, starId);
+            if (star is null) { log.LogWarning("Star {StarId} no longer exists; nothing to do", starId); return; }
+            // A newer revision has its own job; this one is obsolete.
+            if (star.Revision != revision) return;
+            observations = ObservationStore.ForStar(c, starId);
+        }
+
+        var settings = SettingsFor(star);
+        var overrides = new ReviewOverrides(
+            star.ChosenPeriodDays,
+            star.ChosenClass is { } cc && PulsatorClasses.TryParse(cc, out var cls) ? cls : null);
+        var info = StarStore.ToStarInfo(star);
+        var result = AnalysisPipeline.Run(info, observations, settings, overrides);
+        var row = ToRow(starId, revision, result, InputHash(info, observations, settings, overrides), clock.GetUtcNow().ToString("O"));
+
+        using (var c = db.Open())
+        using (var tx = c.BeginTransaction())
+        {
+            AnalysisStore.Upsert(c, tx, row);
+            tx.Commit();
+        }
+        if (star.ReviewState == ReviewStates.Accepted) queue.EnqueueFieldSummary(star.FieldId);
+    }
+
+    internal static PipelineSettings SettingsFor(StarRow star) => PipelineSettings.Default;
+
+    internal static AnalysisRow ToRow(long starId, long revision, StarAnalysis r, string inputHash, string now)
+    {
+        var best = r.Search?.Peaks.FirstOrDefault();
+        bool hasDistance = r.Distance is { FailureReason: null };
+        return new AnalysisRow
+        {
+            StarId = starId, Revision = revision, PipelineVersion = r.PipelineVersion, Outcome = r.Outcome,
+            Class = r.Class?.Class.ToCode(), PeriodDays = r.Period?.PeriodDays, PeriodErrDays = r.Period?.PeriodErrDays,
+            Fap = best?.Fap,
+            DistanceModulus = hasDistance ? r.Distance!.Mu : null, DistanceModulusErr = hasDistance ? r.Distance!.MuErr : null,
+            DistancePc = hasDistance ? r.Distance!.DistancePc : null, DistancePcErr = hasDistance ? r.Distance!.DistancePcErr : null,
+            Flags = string.Join(",", r.Flags), SummaryJson = Json.Serialize(AnalysisSummary.From(r)), ResultJson = Json.Serialize(r), InputHash = inputHash, CreatedAt = now,
+        };
+    }
+
+    /// <summary>SHA-256 over everything the result depends on: provenance, and the check used by "reproduce".</summary>
+    internal static string InputHash(StarInfo star, IReadOnlyList<Observation> obs, PipelineSettings settings, ReviewOverrides overrides)
+    {
+        using var h = IncrementalHash.CreateHash(HashAlgorithmName.SHA256);
+        h.AppendData(Encoding.UTF8.GetBytes(Json.Serialize(star)));
+        h.AppendData(Encoding.UTF8.GetBytes(Json.Serialize(settings)));
+        h.AppendData(Encoding.UTF8.GetBytes(Json.Serialize(overrides)));
+        h.AppendData(Encoding.UTF8.GetBytes(PipelineVersion.Current));
+        Span<byte> buf = stackalloc byte[8];
+        foreach (var o in obs)
+        {
+            BitConverter.TryWriteBytes(buf, o.Id); h.AppendData(buf);
+            BitConverter.TryWriteBytes(buf, o.Time); h.AppendData(buf);
+            BitConverter.TryWriteBytes(buf, o.Mag); h.AppendData(buf);
+            BitConverter.TryWriteBytes(buf, o.MagErr); h.AppendData(buf);
+            h.AppendData(Encoding.UTF8.GetBytes(o.Band + "|" + o.Observer + "|" + o.Flag + "|" + o.Scale.ToCode()));
+        }
+        return Convert.ToHexString(h.GetHashAndReset()).ToLowerInvariant();
+    }
+}

@@ -1,0 +1,27 @@
+namespace PulseLadder.Jobs;
+
+/// <summary>Configuration section "PulseLadder:Jobs".</summary>
+public sealed class JobsOptions
+{
+    public const string Section = "PulseLadder:Jobs";
+
+    /// <summary>"inmemory" (embedded default) or "postgres" (scale-out; uses the PostgreSQL connection of PulseLadder:Database).</summary>
+    public string Storage { get; set; } = "inmemory";
+
+    /// <summary>Worker threads of this process's job server; 0 means one per core.</summary>
+    public int Workers { get; set; }
+
+    /// <summary>Whether this process runs a job server at all (the web host may leave all work to worker processes).</summary>
+    public bool RunServer { get; set; } = true;
+
+    public int EffectiveWorkers => Workers > 0 ? Workers : Environment.ProcessorCount;
+
+    /// <summary>Returns an error message naming the setting, or null when valid.</summary>
+    public string? Validate()
+    {
+        if (Storage is not ("inmemory" or "postgres"))
+            return $"Setting '{Section}:Storage' must be 'inmemory' or 'postgres', not '{Storage}'.";
+        if (Workers < 0 || Workers > 256) return $"Setting '{Section}:Workers' must be between 0 and 256.";
+        return null;
+    }
+}

@@ -1,0 +1,55 @@
+using Hangfire;
+using Hangfire.PostgreSql;
+using Microsoft.Extensions.DependencyInjection;
+using PulseLadder.Storage;
+
+namespace PulseLadder.Jobs;
+
+/// <summary>The one call that wires Hangfire: in-memory storage (embedded) or PostgreSQL (scale-out).</summary>
+public static class JobsSetup
+{
+    /// <param name="services">Service collection; a <see cref="Database"/> and a TimeProvider must be registered.</param>
+    /// <param name="options">Validated job options.</param>
+    /// <param name="database">The campaign database (its PostgreSQL connection also holds Hangfire's tables).</param>
+    /// <param name="isWorkerOnly">True for worker processes: they refuse in-memory storage (it cannot be shared).</param>
+    public static IServiceCollection AddPulseLadderJobs(this IServiceCollection services, JobsOptions options, Database database, bool isWorkerOnly)
+    {
+        if (options.Validate() is { } error) throw new InvalidOperationException(error);
+        if (isWorkerOnly && options.Storage == "inmemory")
+            throw new InvalidOperationException(
+                $"A worker process cannot use in-memory job storage: set '{JobsOptions.Section}:Storage' to 'postgres' " +
+                "(and 'PulseLadder:Database' to a postgres: connection) so the web host and the workers share one queue.");
+        if (options.Storage == "postgres" && database.Dialect != Dialect.Postgres)
+            throw new InvalidOperationException($"'{JobsOptions.Section}:Storage' = 'postgres' needs 'PulseLadder:Database' to be a postgres: connection.");
+
+        services.AddHangfire(cfg =>
+        {
+            cfg.SetDataCompatibilityLevel(CompatibilityLevel.Version_180)
+               .UseSimpleAssemblyNameTypeSerializer()
+               .UseRecommendedSerializerSettings();
+            if (options.Storage == "inmemory") cfg.UseInMemoryStorage();
+            else cfg.UsePostgreSqlStorage(o => o.UseNpgsqlConnection(database.ConnectionString), new PostgreSqlStorageOptions
+            {
+                SchemaName = "hangfire",
+                PrepareSchemaIfNecessary = true,
+                // A job whose worker died is handed to another worker after this long.
+                InvisibilityTimeout = TimeSpan.FromMinutes(5),
+                QueuePollInterval = TimeSpan.FromMilliseconds(200),
+            });
+        });
+        if (options.RunServer)
+        {
+            services.AddHangfireServer(o =>
+            {
+                o.WorkerCount = options.EffectiveWorkers;
+                // Summaries are short and follow a person's decision: serve them before the bulk of star analyses.
+                o.Queues = ["summary", "analysis", "default"];
+                o.SchedulePollingInterval = TimeSpan.FromSeconds(1);
+            });
+        }
+        services.AddSingleton<IAnalysisQueue, HangfireAnalysisQueue>();
+        services.AddTransient<AnalyzeStarJob>();
+        services.AddTransient<FieldSummaryJob>();
+        return services;
+    }
+}

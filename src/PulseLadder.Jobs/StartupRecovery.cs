@@ -1,0 +1,31 @@
+using Microsoft.Extensions.Hosting;
+using Microsoft.Extensions.Logging;
+using PulseLadder.Core.Pipeline;
+using PulseLadder.Storage;
+
+namespace PulseLadder.Jobs;
+
+/// <summary>
+/// At start-up, re-enqueues every star without a result for its current revision and this pipeline version.
+/// In-memory jobs die with the process; the database remembers what remains, so nothing is lost, and because jobs
+/// upsert by (star, revision, version), a star queued twice still ends with one row.
+/// </summary>
+public sealed class StartupRecovery(Database db, IAnalysisQueue queue, ILogger<StartupRecovery> log) : IHostedService
+{
+    public Task StartAsync(CancellationToken cancellationToken)
+    {
+        int n = EnqueuePending(db, queue);
+        if (n > 0) log.LogInformation("Re-enqueued {Count} stars without a current analysis", n);
+        return Task.CompletedTask;
+    }
+
+    public static int EnqueuePending(Database db, IAnalysisQueue queue)
+    {
+        using var c = db.Open();
+        var pending = StarStore.Pending(c, PipelineVersion.Current);
+        foreach (var (starId, revision) in pending) queue.EnqueueStar(starId, revision);
+        return pending.Count;
+    }
+
+    public Task StopAsync(CancellationToken cancellationToken) => Task.CompletedTask;
+}

@@ -1,0 +1,34 @@
+using Microsoft.Extensions.Configuration;
+using Microsoft.Extensions.DependencyInjection;
+using Microsoft.Extensions.Hosting;
+using PulseLadder.Storage;
+
+namespace PulseLadder.Jobs;
+
+/// <summary>
+/// A process that only runs the job server (scale-out). It never migrates: it refuses a schema it does not know,
+/// and refuses in-memory job storage, with messages naming the setting.
+/// </summary>
+public static class WorkerHost
+{
+    public const string DatabaseSetting = "PulseLadder:Database";
+
+    public static IHost Build(string[] args)
+    {
+        var builder = Host.CreateApplicationBuilder(args);
+        var jobs = builder.Configuration.GetSection(JobsOptions.Section).Get<JobsOptions>() ?? new JobsOptions();
+        jobs.RunServer = true;
+        string setting = builder.Configuration[DatabaseSetting] ?? "";
+        if (string.IsNullOrWhiteSpace(setting))
+            throw new InvalidOperationException($"A worker needs '{DatabaseSetting}' (postgres:CONNECTION STRING), shared with the web host.");
+        var db = Database.FromSetting(setting);
+        if (jobs.Storage == "inmemory")
+            throw new InvalidOperationException(
+                $"A worker process cannot use in-memory job storage: set '{JobsOptions.Section}:Storage' to 'postgres'.");
+        db.EnsureSchemaIsCurrent();
+        builder.Services.AddSingleton(db);
+        builder.Services.AddSingleton(TimeProvider.System);
+        builder.Services.AddPulseLadderJobs(jobs, db, isWorkerOnly: true);
+        return builder.Build();
+    }
+}

@@ -1,0 +1,15 @@
+using System.Data.Common;
+using Dapper;
+
+namespace PulseLadder.Storage;
+
+/// <summary>The append-only audit log (the schema refuses updates and deletes).</summary>
+public static class AuditStore
+{
+    public static void Append(DbConnection c, DbTransaction? tx, string at, string actor, string action, string subject, string detail) =>
+        c.Execute("INSERT INTO audit_log (at, actor, action, subject, detail) VALUES (@at, @actor, @action, @subject, @detail)",
+            new { at, actor, action, subject, detail }, tx);
+
+    public static IReadOnlyList<AuditRow> Recent(DbConnection c, int limit) =>
+        c.Query<AuditRow>("SELECT * FROM audit_log ORDER BY id DESC LIMIT @limit", new { limit }).AsList();
+}

@@ -1,0 +1,89 @@
+using System.Data.Common;
+using PulseLadder.Core.Photometry;
+
+namespace PulseLadder.Storage;
+
+/// <summary>A validated star list file.</summary>
+public sealed record StarListFile(string FileName, string Sha256, IReadOnlyList<StarInfo> Stars);
+
+/// <summary>A validated photometry file with its declared time scale and offset.</summary>
+public sealed record PhotometryFile(string FileName, string Sha256, TimeScale Scale, double TimeOffset, IReadOnlyList<Core.Ingest.PhotometryRow> Rows);
+
+/// <summary>What an upload stored.</summary>
+public sealed record UploadOutcome(long BatchId, int StarsAdded, int StarsChanged, long ObservationsAdded,
+    IReadOnlyList<string> DuplicateFiles, IReadOnlyList<(long StarId, long Revision)> StarsToAnalyse);
+
+/// <summary>
+/// Stores an upload whole, in one transaction, or not at all. Files whose exact bytes were uploaded before
+/// (SHA-256) add nothing.
+/// </summary>
+public static class UploadWriter
+{
+    public static UploadOutcome Store(Database db, StarListFile? starList, IReadOnlyList<PhotometryFile> photometry, string actor, TimeProvider clock)
+    {
+        string now = clock.GetUtcNow().ToString("O");
+        using var c = db.Open();
+        using var tx = c.BeginTransaction();
+        long batch = UploadStore.NextBatchId(c, tx);
+        var duplicates = new List<string>();
+        var touched = new HashSet<long>();
+        int added = 0, changed = 0;
+        long observations = 0;
+
+        if (starList is not null)
+        {
+            if (UploadStore.FindByHash(c, "stars", starList.Sha256, tx) is not null) duplicates.Add(starList.FileName);
+            else
+            {
+                var known = StarStore.IdsByName(c, tx);
+                foreach (var s in starList.Stars)
+                {
+                    long fieldId = FieldStore.GetOrCreate(c, tx, s.Field, now);
+                    bool isNew = !known.ContainsKey(s.Name);
+                    var (id, didChange) = StarStore.Upsert(c, tx, s, fieldId, now);
+                    if (isNew) added++;
+                    else if (didChange) changed++;
+                    if (didChange) touched.Add(id);
+                }
+                UploadStore.Insert(c, tx, new UploadRow
+                {
+                    Kind = "stars", FileName = starList.FileName, Sha256 = starList.Sha256, Rows = starList.Stars.Count,
+                    UploadedBy = actor, UploadedAt = now, BatchId = batch,
+                });
+            }
+        }
+
+        var ids = StarStore.IdsByName(c, tx);
+        foreach (var f in photometry)
+        {
+            if (UploadStore.FindByHash(c, "photometry", f.Sha256, tx) is not null) { duplicates.Add(f.FileName); continue; }
+            long uploadId = UploadStore.Insert(c, tx, new UploadRow
+            {
+                Kind = "photometry", FileName = f.FileName, Sha256 = f.Sha256, TimeScale = f.Scale.ToCode(), TimeOffset = f.TimeOffset,
+                Rows = f.Rows.Count, UploadedBy = actor, UploadedAt = now, BatchId = batch,
+            });
+            var starIds = new HashSet<long>();
+            ObservationStore.BulkInsert(c, tx, uploadId, f.Rows.Select(r =>
+            {
+                // The caller validated star names against the star list; a miss here is a bug.
+                long sid = ids.TryGetValue(r.Star, out var v) ? v : throw new InvalidOperationException($"Star '{r.Star}' is not in the star list.");
+                starIds.Add(sid);
+                var o = r.Observation;
+                return new ObservationToStore(sid, checked((int)r.Line), o.Time, o.Scale, o.Band, o.Mag, o.MagErr, o.Observer, o.Flag);
+            }));
+            observations += f.Rows.Count;
+            // New photometry makes the star's current result stale.
+            StarStore.BumpRevision(c, tx, starIds.Where(s => !touched.Contains(s)));
+            touched.UnionWith(starIds);
+        }
+
+        UploadStore.LinkStars(c, tx, batch, touched);
+        AuditStore.Append(c, tx, now, actor, "upload", $"batch {batch}",
+            $"stars added {added}, changed {changed}; observations {observations}; duplicates: {string.Join(", ", duplicates)}");
+        tx.Commit();
+
+        var pending = StarStore.Pending(c, Core.Pipeline.PipelineVersion.Current).ToDictionary(p => p.StarId, p => p.Revision);
+        var toAnalyse = touched.Where(pending.ContainsKey).Select(id => (id, pending[id])).ToList();
+        return new UploadOutcome(batch, added, changed, observations, duplicates, toAnalyse);
+    }
+}

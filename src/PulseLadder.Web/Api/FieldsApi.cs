@@ -1,0 +1,81 @@
+using Microsoft.AspNetCore.Http.HttpResults;
+using PulseLadder.Core.Pipeline;
+using PulseLadder.Storage;
+
+namespace PulseLadder.Web.Api;
+
+public sealed record FieldSummaryBrief(double? Mu, double? MuErr, double? DistancePc, double? DistancePcErr, long NUsed);
+
+public sealed record FieldDto(long FieldId, string Name, string? CalibrationId, long Stars, long Analysed, long Accepted, long Rejected, long Awaiting, FieldSummaryBrief? Summary);
+
+public sealed record StarPage(int Total, int Page, int PageSize, IReadOnlyList<StarRowDto> Items);
+
+public sealed record ProgressDto(long StarsTotal, long StarsDone, long StarsPending);
+
+/// <summary>Fields, their stars and distance summaries.</summary>
+public static class FieldsApi
+{
+    public static void Map(RouteGroupBuilder api)
+    {
+        api.MapGet("/fields", List).WithName("ListFields");
+        api.MapGet("/fields/{fieldId:long}/stars", Stars).WithName("ListFieldStars");
+        api.MapGet("/fields/{fieldId:long}/summary", Summary).WithName("GetFieldSummary");
+        api.MapGet("/progress", Progress).WithName("GetProgress");
+    }
+
+    public static Ok<List<FieldDto>> List(Database db)
+    {
+        using var c = db.Open();
+        var counts = FieldStore.Counts(c, PipelineVersion.Current).ToDictionary(x => x.FieldId);
+        var list = FieldStore.List(c).Select(f =>
+        {
+            var n = counts.GetValueOrDefault(f.Id) ?? new FieldCounts();
+            var s = FieldSummaryStore.Get(c, f.Id);
+            FieldSummaryBrief? brief = s is null ? null : new FieldSummaryBrief(s.Mu, s.MuErr,
+                s.Mu is { } mu ? Core.Quantities.DistanceModulus.FromMagnitudes(mu).ToParsecs() : null,
+                s.Mu is { } mu2 && s.MuErr is { } e ? Core.Quantities.DistanceModulus.FromMagnitudes(mu2).ParsecErrorFor(e) : null,
+                s.NUsed);
+            return new FieldDto(f.Id, f.Name, f.CalibrationId, n.Stars, n.Analysed, n.Accepted, n.Rejected, n.Awaiting, brief);
+        }).ToList();
+        return TypedResults.Ok(list);
+    }
+
+    public static Results<Ok<StarPage>, ProblemHttpResult> Stars(
+        Database db, long fieldId, string? state, string? @class, string? q, int? page, [Microsoft.AspNetCore.Mvc.FromQuery(Name = "page_size")] int? pageSize)
+    {
+        using var c = db.Open();
+        if (FieldStore.Get(c, fieldId) is null) return NotFound($"No field with id {fieldId}.");
+        IEnumerable<StarRowDto> rows = StarViews.FieldRows(c, fieldId);
+        if (!string.IsNullOrEmpty(state)) rows = rows.Where(r => r.State == state);
+        if (!string.IsNullOrEmpty(@class)) rows = rows.Where(r => r.Class == @class);
+        if (!string.IsNullOrEmpty(q)) rows = rows.Where(r => r.Star.Contains(q, StringComparison.OrdinalIgnoreCase));
+        var all = rows.ToList();
+        int size = Math.Clamp(pageSize ?? 500, 1, 5000), p = Math.Max(1, page ?? 1);
+        return TypedResults.Ok(new StarPage(all.Count, p, size, all.Skip((p - 1) * size).Take(size).ToList()));
+    }
+
+    public static Results<Ok<FieldSummaryView>, ProblemHttpResult> Summary(Database db, long fieldId)
+    {
+        using var c = db.Open();
+        var f = FieldStore.Get(c, fieldId);
+        if (f is null) return NotFound($"No field with id {fieldId}.");
+        var s = FieldSummaryStore.Get(c, fieldId);
+        if (s is null) return NotFound($"Field '{f.Name}' has no accepted star with a distance yet.");
+        return TypedResults.Ok(new FieldSummaryView(f.Id, f.Name, s.NUsed, s.Mu, s.MuErr, s.ComputedAt,
+            System.Text.Json.JsonDocument.Parse(s.ResultJson).RootElement));
+    }
+
+    public static Ok<ProgressDto> Progress(Database db)
+    {
+        using var c = db.Open();
+        long total = StarStore.CountWithObservations(c);
+        long pending = StarStore.Pending(c, PipelineVersion.Current).Count;
+        return TypedResults.Ok(new ProgressDto(total, total - pending, pending));
+    }
+
+    internal static ProblemHttpResult NotFound(string detail) =>
+        TypedResults.Problem(title: "Not found", detail: detail, statusCode: 404);
+}
+
+public sealed record FieldSummaryView(long FieldId, string Field, long NUsed, double? Mu, double? MuErr, string ComputedAt, System.Text.Json.JsonElement Detail);
+

@@ -1,0 +1,33 @@
+namespace PulseLadder.Web;
+
+/// <summary>Configuration section "PulseLadder".</summary>
+public sealed class PulseLadderOptions
+{
+    public const string Section = "PulseLadder";
+
+    /// <summary>Folder for the SQLite file and other local state (embedded default).</summary>
+    public string DataDir { get; set; } = "pulseladder-data";
+
+    /// <summary>"sqlite:PATH" or "postgres:CONNECTION STRING"; empty means sqlite in <see cref="DataDir"/>.</summary>
+    public string Database { get; set; } = "";
+
+    /// <summary>Largest accepted upload request, bytes.</summary>
+    public long MaxUploadBytes { get; set; } = 1L << 30;
+
+    /// <summary>Largest number of photometry rows per upload.</summary>
+    public int MaxUploadRows { get; set; } = 20_000_000;
+
+    public string EffectiveDatabase => string.IsNullOrWhiteSpace(Database)
+        ? "sqlite:" + Path.Combine(Path.GetFullPath(DataDir), "pulseladder.db")
+        : Database;
+
+    public string? Validate()
+    {
+        if (!string.IsNullOrWhiteSpace(Database) && !Database.StartsWith("sqlite:", StringComparison.OrdinalIgnoreCase)
+            && !Database.StartsWith("postgres:", StringComparison.OrdinalIgnoreCase))
+            return $"Setting '{Section}:Database' must start with 'sqlite:' or 'postgres:'.";
+        if (MaxUploadBytes < 1024) return $"Setting '{Section}:MaxUploadBytes' must be at least 1024.";
+        if (MaxUploadRows < 1) return $"Setting '{Section}:MaxUploadRows' must be positive.";
+        return null;
+    }
+}

@@ -1,0 +1,67 @@
+using Hangfire;
+using Microsoft.AspNetCore.Http.Features;
+using Microsoft.Extensions.Options;
+using PulseLadder.Jobs;
+using PulseLadder.Storage;
+using PulseLadder.Web.Api;
+
+namespace PulseLadder.Web;
+
+/// <summary>Builds the web host: API, pages, and (embedded default) the job server in the same process.</summary>
+public static class PulseLadderWeb
+{
+    /// <summary>Creates the application. <paramref name="configure"/> lets the CLI and tests adjust the builder.</summary>
+    public static WebApplication Build(string[] args, Action<WebApplicationBuilder>? configure = null)
+    {
+        var builder = WebApplication.CreateBuilder(new WebApplicationOptions
+        {
+            Args = args,
+            ContentRootPath = AppContext.BaseDirectory,
+            WebRootPath = Path.Combine(AppContext.BaseDirectory, "wwwroot"),
+        });
+        configure?.Invoke(builder);
+
+        var options = builder.Configuration.GetSection(PulseLadderOptions.Section).Get<PulseLadderOptions>() ?? new PulseLadderOptions();
+        if (options.Validate() is { } optionsError) throw new InvalidOperationException(optionsError);
+        var jobs = builder.Configuration.GetSection(JobsOptions.Section).Get<JobsOptions>() ?? new JobsOptions();
+        if (!options.EffectiveDatabase.StartsWith("postgres:", StringComparison.OrdinalIgnoreCase))
+            Directory.CreateDirectory(Path.GetFullPath(options.DataDir));
+        var database = Database.FromSetting(options.EffectiveDatabase);
+
+        builder.Services.AddSingleton(Options.Create(options));
+        builder.Services.AddSingleton(database);
+        builder.Services.AddSingleton(TimeProvider.System);
+        builder.Services.AddPulseLadderJobs(jobs, database, isWorkerOnly: false);
+        builder.Services.AddHostedService<StartupRecovery>();
+        builder.Services.AddProblemDetails();
+        builder.Services.AddOpenApi("v1");
+        builder.Services.ConfigureHttpJsonOptions(o =>
+        {
+            o.SerializerOptions.PropertyNamingPolicy = Json.Options.PropertyNamingPolicy;
+            o.SerializerOptions.NumberHandling = Json.Options.NumberHandling;
+            foreach (var conv in Json.Options.Converters) o.SerializerOptions.Converters.Add(conv);
+        });
+        builder.Services.Configure<FormOptions>(o => o.MultipartBodyLengthLimit = options.MaxUploadBytes);
+        builder.WebHost.ConfigureKestrel(k => k.Limits.MaxRequestBodySize = options.MaxUploadBytes);
+
+        var app = builder.Build();
+
+        // The web host owns the schema: migrate before anything (hosted services, requests) touches the database.
+        database.Migrate(app.Services.GetRequiredService<TimeProvider>());
+
+        app.UseExceptionHandler();
+        app.UseStatusCodePages();
+        app.UseDefaultFiles();
+        app.UseStaticFiles();
+        app.MapOpenApi("/openapi/{documentName}.json");
+        app.MapGet("/health", () => TypedResults.Ok(new { status = "ok" })).ExcludeFromDescription();
+        app.MapHangfireDashboard("/jobs");
+        var api = app.MapGroup("/api/v1");
+        UploadsApi.Map(api);
+        FieldsApi.Map(api);
+        StarsApi.Map(api);
+        ReviewApi.Map(api);
+        ExportApi.Map(api);
+        return app;
+    }
+}
