@@ -19,6 +19,9 @@ internal static class PeriodSearchEngine
     /// offset-corrected magnitudes (own choice: below this the raw periodogram is barely disturbed).</summary>
     internal const double OffsetSecondPassShare = 0.10;
 
+    /// <summary>Candidates whose harmonic fit is minimised in frequency (the rest are compared at their GLS peak).</summary>
+    internal const int RankingRefined = 3;
+
     public static PeriodSearchResult Search(IReadOnlyList<LightCurvePoint> points, PulsatorClass cls, PeriodSearchSettings s)
     {
         var data = SearchData.Prepare(points);
@@ -88,8 +91,8 @@ internal static class PeriodSearchEngine
         foreach (var k in candidates)
         {
             double fk = grid.At(k);
-            var (x, v) = Brent.Minimize(f => -CombinedPowerAt(data, f), fk - grid.Df, fk + grid.Df, grid.Df * 1e-6);
-            refined.Add(-v >= power[k] ? new Candidate(x, -v) : new Candidate(fk, power[k]));
+            var (x, v) = RefinePeak(data, fk, grid.Df);
+            refined.Add(v >= power[k] ? new Candidate(x, v) : new Candidate(fk, power[k]));
         }
 
         // Re-rank with the multi-harmonic model + observer zero points.
@@ -99,11 +102,18 @@ internal static class PeriodSearchEngine
         bool modelUsable = orders.Any(o => o > 0) && chiRef > 0;
         if (modelUsable)
         {
+            // Every candidate at its GLS frequency first; only the best few get the (costlier) local minimisation:
+            // the model optimum lies a small fraction of a grid step from the GLS peak.
             foreach (var c in refined)
+            {
+                double v = HarmonicFit.TotalChi2(data.Bands, orders, refChi2, c.Frequency);
+                if (double.IsFinite(v)) { c.ModelFrequency = c.Frequency; c.ModelChi2 = v; }
+            }
+            foreach (var c in refined.Where(c => c.ModelChi2 is not null).OrderBy(c => c.ModelChi2).Take(RankingRefined).ToList())
             {
                 double h = 2 * grid.Df;
                 var (x, v) = Brent.Minimize(f => HarmonicFit.TotalChi2(data.Bands, orders, refChi2, f), c.Frequency - h, c.Frequency + h, grid.Df * 1e-2);
-                if (double.IsFinite(v)) { c.ModelFrequency = x; c.ModelChi2 = v; }
+                if (double.IsFinite(v) && v < c.ModelChi2) { c.ModelFrequency = x; c.ModelChi2 = v; }
             }
         }
         var ranked = refined
@@ -158,10 +168,7 @@ internal static class PeriodSearchEngine
         var plotIdx = SpectralTools.Thin(power);
         var plot = Thinned(power, grid, plotIdx);
         var wy = new double[plot.X.Length];
-        // A (vectorised) complex multiply costs a small fraction of a sin/cos pair: rotate along the grid unless it is
-        // much longer than the plot.
-        if (grid.Count <= 30L * plotIdx.Length) SpectralTools.WindowOnGrid(data.AllT, grid.F0, grid.Df, plotIdx, wy);
-        else SpectralTools.Window(data.AllT, plot.X, wy);
+        SpectralTools.WindowOnGrid(data.AllT, grid.F0, grid.Df, plotIdx, wy);
 
         // Detection asks whether any listed peak is significant; which of them is the period is the ranking's job
         // (a preferred double period has little single-sinusoid power of its own).
@@ -246,6 +253,43 @@ internal static class PeriodSearchEngine
         if (data.Bands.Count > 1)
             for (int k = 0; k < power.Length; k++) power[k] /= chi0;
         return power;
+    }
+
+    /// <summary>
+    /// Maximum of the combined power near grid peak <paramref name="fk"/>: two zoom levels of 33 frequencies
+    /// (+- df, then +- df/16; final step df/256), a parabola through the best three, one last evaluation there.
+    /// Each level is one kernel call per band: a call has a fixed cost far above that of one frequency, so this
+    /// beats a point-by-point 1-D search.
+    /// </summary>
+    internal static (double F, double Power) RefinePeak(SearchData data, double fk, double df)
+    {
+        const int m = 33;
+        double center = fk, half = df, bestF = fk, bestP = double.NegativeInfinity;
+        double step = 0;
+        double[] p = [];
+        int j = 0;
+        for (int level = 0; level < 2; level++)
+        {
+            step = 2 * half / (m - 1);
+            var g = new FrequencyGrid(center - half, step, m, false);
+            p = CombinedPower(data, g);
+            j = 0;
+            for (int i = 1; i < m; i++) if (p[i] > p[j]) j = i;
+            if (p[j] > bestP) { bestP = p[j]; bestF = g.At(j); }
+            center = g.At(j);
+            half = step;
+        }
+        if (j > 0 && j < m - 1)
+        {
+            double denom = p[j - 1] - 2 * p[j] + p[j + 1];
+            if (denom < 0)
+            {
+                double fx = center + 0.5 * step * (p[j - 1] - p[j + 1]) / denom;
+                double px = CombinedPowerAt(data, fx);
+                if (px > bestP) { bestP = px; bestF = fx; }
+            }
+        }
+        return (bestF, bestP);
     }
 
     internal static double CombinedPowerAt(SearchData data, double f)
@@ -392,7 +436,7 @@ internal static class PeriodSearchEngine
         if (startOrders.All(o => o <= 0)) return Unrefined("too_few_points");
         var refChi2 = data.Bands.Select(b => HarmonicFit.Fit(b, 0, 0) ?? b.Chi2Mean).ToArray();
         double half = 0.5 / T;
-        const int steps = 40;
+        const int steps = 20;
         double bestF = frequency, bestC = double.PositiveInfinity;
         for (int i = 0; i <= steps; i++)
         {

@@ -17,8 +17,7 @@ public abstract class AliasRecoveryBase(ITestOutputHelper output)
         for (int i = 0; i < cases; i++)
         {
             var star = SyntheticCampaign.Make(kind, seed0 + i);
-            // n0 = 5, the coarsest grid allowed, keeps this suite fast on the scalar kernel; the default is 10.
-            var r = PeriodFinder.FindPeriods(star.Points, hint, new PeriodSearchSettings { Oversampling = 5 });
+            var r = PeriodFinder.FindPeriods(star.Points, hint, new PeriodSearchSettings());
             double T = r.BaselineDays;
             double fTrue = 1 / star.PeriodDays;
             // Within a quarter of a peak width: aliases (daily, annual, harmonics) are at least ~1.6/T away.
@@ -52,7 +51,7 @@ public class AliasRecoveryRRLyraeTests(ITestOutputHelper output) : AliasRecovery
     [Fact]
     public void FindPeriods_RecoversTruePeriodIn97Percent_OfSyntheticRRab()
     {
-        var r = Run(SyntheticCampaign.Kind.RRab, PulsatorClass.RRLyraeAB, 40, 2000);
+        var r = Run(SyntheticCampaign.Kind.RRab, PulsatorClass.RRLyraeAB, 50, 2000);
         Report("RRab P 0.45-0.8 d", r);
         Assert.True(r.Ok >= 0.97 * r.N, $"{r.Ok}/{r.N}");
     }
@@ -60,7 +59,7 @@ public class AliasRecoveryRRLyraeTests(ITestOutputHelper output) : AliasRecovery
     [Fact]
     public void FindPeriods_RecoversTruePeriodIn97Percent_OfSyntheticRRc()
     {
-        var r = Run(SyntheticCampaign.Kind.RRc, PulsatorClass.RRLyraeC, 40, 3000);
+        var r = Run(SyntheticCampaign.Kind.RRc, PulsatorClass.RRLyraeC, 50, 3000);
         Report("RRc P 0.28-0.42 d", r);
         Assert.True(r.Ok >= 0.97 * r.N, $"{r.Ok}/{r.N}");
     }
