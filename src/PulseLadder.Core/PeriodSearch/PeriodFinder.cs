@@ -94,6 +94,10 @@ public sealed record PeriodSearchResult
     /// <summary>Per-band observer zero points (relative to the band's reference observer, which is listed with 0)
     /// fitted with the ranking model at the best peak; errors scaled by max(1, sqrt(chi2_red)).</summary>
     public IReadOnlyList<ObserverOffset> ObserverOffsets { get; init; } = [];
+    /// <summary>FAP of the best peak's harmonic model against constants plus observer offsets (method
+    /// "model_beta_naive_neff", docs/period-search.md); a search is significant only when this and the periodogram
+    /// FAP are both below the threshold. Null when no band supports the model.</summary>
+    public double? ModelFap { get; init; }
     /// <summary>Bootstrap FAP of the best peak (fraction of resampled maxima at or above it), when requested.</summary>
     public double? BootstrapFap { get; init; }
     public int BootstrapSamples { get; init; }

@@ -173,9 +173,25 @@ internal static class PeriodSearchEngine
         // Detection asks whether any listed peak is significant; which of them is the period is the ranking's job
         // (a preferred double period has little single-sinusoid power of its own).
         double bestFap = bootFap ?? peaks.Min(p => p.Fap ?? 1.0);
+
+        // The GLS runs on raw magnitudes, where observer zero points that follow the time of night (observers at
+        // different sites) look like a 1 c/d signal. The detection must also beat the constants-and-offsets model.
+        double? modelFap = null;
+        if (modelUsable && ranked[0].ModelChi2 is { } bestChi2)
+        {
+            int free = 0, total = 0;
+            for (int b = 0; b < data.Bands.Count; b++)
+            {
+                int m = data.Bands[b].Observers.Length;
+                total += orders[b] > 0 ? HarmonicFit.ParamCount(orders[b], m) : HarmonicFit.ParamCount(0, m);
+                free += 2 * orders[b];
+            }
+            modelFap = FalseAlarm.Model(Math.Clamp(1 - bestChi2 / chiRef, 0, 1), data.Count, free, total, orders.Max(), grid.FMax, data.Baseline);
+        }
         return result with
         {
-            FailureReason = bestFap > s.MaxFalseAlarmProbability ? "no_significant_period" : null,
+            FailureReason = bestFap > s.MaxFalseAlarmProbability || modelFap > s.MaxFalseAlarmProbability ? "no_significant_period" : null,
+            ModelFap = modelFap,
             Peaks = peaks,
             Periodogram = plot,
             Window = new Curve(plot.X, wy),

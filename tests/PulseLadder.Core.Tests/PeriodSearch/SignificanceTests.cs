@@ -69,6 +69,16 @@ public class SignificanceTests
     }
 
     [Fact]
+    public void Model_MatchesIncompleteBeta_ForSixFreeParameters()
+    {
+        // 3 harmonics in one band (6 free parameters, 9 in all with constant and two offsets), N = 120, z = 0.3:
+        // single-frequency FAP = I_{1-z}((N-9)/2, 3) (MathNet.Numerics BetaRegularized), times 3 f_max T frequencies.
+        double single = MathNet.Numerics.SpecialFunctions.BetaRegularized((120 - 9) / 2.0, 3, 0.7);
+        double expected = 1 - Math.Pow(1 - single, 3 * 1.25 * 500);
+        Assert.Equal(expected, FalseAlarm.Model(0.3, 120, 6, 9, 3, 1.25, 500), 1e-9);
+    }
+
+    [Fact]
     public void Baluev_MatchesAstropyReference_OnCommittedDatasets()
     {
         using var doc = JsonDocument.Parse(File.ReadAllText(RepoFile("tests", "reference", "period", "astropy_reference.json")));
