@@ -45,9 +45,20 @@ internal static class FalseAlarm
     /// naive count of independent frequencies N_eff = f_max T (SCIENCE.md 1.6, "naive alternative").
     /// </summary>
     public static double Multiband(double z, int n, int bands, double fMax, double baseline)
+        => BetaNaive(z, 0.5 * (n - 3.0 * bands), bands, Math.Max(1.0, fMax * baseline));
+
+    /// <summary>
+    /// FAP of the harmonic model's power z = 1 - chi2/chi2_ref against the constants-and-offsets model:
+    /// <paramref name="freeParams"/> (even) frequency-dependent parameters, <paramref name="totalParams"/> in all.
+    /// Same Beta argument as <see cref="Multiband"/>; the naive frequency count is multiplied by the highest
+    /// harmonic (its k f terms scan k times the range).
+    /// </summary>
+    public static double Model(double z, int n, int freeParams, int totalParams, int maxHarmonic, double fMax, double baseline)
+        => freeParams < 2 ? 1.0 : BetaNaive(z, 0.5 * (n - totalParams), freeParams / 2, Math.Max(1.0, Math.Max(1, maxHarmonic) * fMax * baseline));
+
+    private static double BetaNaive(double z, double a, int bands, double nEff)
     {
         if (bands < 1) return 1.0;
-        double a = 0.5 * (n - 3.0 * bands);
         if (!(z > 0) || !(a > 0)) return 1.0;
         if (z >= 1) return 0.0;
         double log1mz = Log1P(-z), logz = Math.Log(z);
@@ -62,7 +73,6 @@ internal static class FalseAlarm
         double sum = 0;
         foreach (double tj in terms) sum += Math.Exp(tj - maxLog);
         double single = Math.Min(1.0, Math.Exp(maxLog + Math.Log(sum)));
-        double nEff = Math.Max(1.0, fMax * baseline);
         if (single >= 1) return 1.0;
         return Clamp(-ExpM1(nEff * Log1P(-single)));
     }

@@ -32,6 +32,11 @@ public sealed record PeriodSearchSettings
     public int BootstrapSamples { get; init; }
     /// <summary>PDM disagrees when another candidate's theta is below (1 - margin) x theta of the chosen period.</summary>
     public double PdmClearMargin { get; init; } = 0.2;
+    /// <summary>Also try twice the best period with twice the harmonics (RV Tauri alternating minima); when BIC favours
+    /// it, it is appended to the peaks (note "double_period_favoured"). Null: only for Type II Cepheids.</summary>
+    public bool? ConsiderDoublePeriod { get; init; }
+    /// <summary>Put a BIC-favoured double period first instead of appending it (note "double_period_preferred").</summary>
+    public bool PreferDoublePeriod { get; init; }
     /// <summary>Largest grid; a longer one (absurd baseline, e.g. a stray point years away) is coarsened to this size
     /// and the result notes "grid_capped". 500 000 covers 0.01-5 c/d over ten years at n0 = 10.</summary>
     public int MaxFrequencies { get; init; } = 500_000;
@@ -89,6 +94,10 @@ public sealed record PeriodSearchResult
     /// <summary>Per-band observer zero points (relative to the band's reference observer, which is listed with 0)
     /// fitted with the ranking model at the best peak; errors scaled by max(1, sqrt(chi2_red)).</summary>
     public IReadOnlyList<ObserverOffset> ObserverOffsets { get; init; } = [];
+    /// <summary>FAP of the best peak's harmonic model against constants plus observer offsets (method
+    /// "model_beta_naive_neff", docs/period-search.md); a search is significant only when this and the periodogram
+    /// FAP are both below the threshold. Null when no band supports the model.</summary>
+    public double? ModelFap { get; init; }
     /// <summary>Bootstrap FAP of the best peak (fraction of resampled maxima at or above it), when requested.</summary>
     public double? BootstrapFap { get; init; }
     public int BootstrapSamples { get; init; }

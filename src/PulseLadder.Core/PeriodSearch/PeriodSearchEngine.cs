@@ -15,9 +15,50 @@ internal static class PeriodSearchEngine
         public double? ModelChi2 { get; set; }
     }
 
+    /// <summary>Share of a band's chi2_0 that observer offsets must explain before the grid is searched again on
+    /// offset-corrected magnitudes (own choice: below this the raw periodogram is barely disturbed).</summary>
+    internal const double OffsetSecondPassShare = 0.10;
+
+    /// <summary>Candidates whose harmonic fit is minimised in frequency (the rest are compared at their GLS peak).</summary>
+    internal const int RankingRefined = 3;
+
     public static PeriodSearchResult Search(IReadOnlyList<LightCurvePoint> points, PulsatorClass cls, PeriodSearchSettings s)
     {
         var data = SearchData.Prepare(points);
+        var first = SearchOnce(data, cls, s);
+        if (first.Peaks.Count == 0 || first.ObserverOffsets.Count == 0 || !OffsetsMatter(data, first.ObserverOffsets)) return first;
+
+        // The coarse grid ran on raw magnitudes; observer zero points blur it. Search again with them removed.
+        var corrected = data.WithOffsetsRemoved(first.ObserverOffsets);
+        var second = SearchOnce(corrected, cls, s);
+        if (second.Peaks.Count == 0) return first;
+        var total = second.ObserverOffsets.Select(o =>
+        {
+            double o1 = first.ObserverOffsets.FirstOrDefault(x => x.Band == o.Band && x.Observer == o.Observer)?.Offset ?? 0;
+            return o with { Offset = o.Offset + o1 };
+        }).ToArray();
+        return second with { ObserverOffsets = total, Notes = [.. second.Notes, "offsets_removed_second_pass"] };
+    }
+
+    private static bool OffsetsMatter(SearchData data, IReadOnlyList<ObserverOffset> offsets)
+    {
+        foreach (var b in data.Bands)
+        {
+            if (!(b.Chi2Mean > 0)) continue;
+            var o = new double[b.Observers.Length];
+            foreach (var x in offsets)
+                if (x.Band == b.Band) { int j = Array.IndexOf(b.Observers, x.Observer); if (j >= 0) o[j] = x.Offset; }
+            double sw = 0, swo = 0;
+            for (int i = 0; i < b.Count; i++) { sw += b.W[i]; swo += b.W[i] * o[b.Obs[i]]; }
+            double mean = swo / sw, ss = 0;
+            for (int i = 0; i < b.Count; i++) { double d = o[b.Obs[i]] - mean; ss += b.W[i] * d * d; }
+            if (ss > OffsetSecondPassShare * b.Chi2Mean) return true;
+        }
+        return false;
+    }
+
+    private static PeriodSearchResult SearchOnce(SearchData data, PulsatorClass cls, PeriodSearchSettings s)
+    {
         var result = new PeriodSearchResult
         {
             BaselineDays = data.Baseline, PointsUsed = data.Count, Seed = s.Seed,
@@ -50,8 +91,8 @@ internal static class PeriodSearchEngine
         foreach (var k in candidates)
         {
             double fk = grid.At(k);
-            var (x, v) = Brent.Minimize(f => -CombinedPowerAt(data, f), fk - grid.Df, fk + grid.Df, grid.Df * 1e-6);
-            refined.Add(-v >= power[k] ? new Candidate(x, -v) : new Candidate(fk, power[k]));
+            var (x, v) = RefinePeak(data, fk, grid.Df);
+            refined.Add(v >= power[k] ? new Candidate(x, v) : new Candidate(fk, power[k]));
         }
 
         // Re-rank with the multi-harmonic model + observer zero points.
@@ -61,17 +102,34 @@ internal static class PeriodSearchEngine
         bool modelUsable = orders.Any(o => o > 0) && chiRef > 0;
         if (modelUsable)
         {
+            // Every candidate at its GLS frequency first; only the best few get the (costlier) local minimisation:
+            // the model optimum lies a small fraction of a grid step from the GLS peak.
             foreach (var c in refined)
+            {
+                double v = HarmonicFit.TotalChi2(data.Bands, orders, refChi2, c.Frequency);
+                if (double.IsFinite(v)) { c.ModelFrequency = c.Frequency; c.ModelChi2 = v; }
+            }
+            foreach (var c in refined.Where(c => c.ModelChi2 is not null).OrderBy(c => c.ModelChi2).Take(RankingRefined).ToList())
             {
                 double h = 2 * grid.Df;
                 var (x, v) = Brent.Minimize(f => HarmonicFit.TotalChi2(data.Bands, orders, refChi2, f), c.Frequency - h, c.Frequency + h, grid.Df * 1e-2);
-                if (double.IsFinite(v)) { c.ModelFrequency = x; c.ModelChi2 = v; }
+                if (double.IsFinite(v) && v < c.ModelChi2) { c.ModelFrequency = x; c.ModelChi2 = v; }
             }
         }
         var ranked = refined
             .OrderBy(c => c.ModelChi2 ?? double.PositiveInfinity)
             .ThenByDescending(c => c.Power)
             .ToList();
+
+        Candidate? doubleCandidate = null;
+        if (modelUsable && (s.ConsiderDoublePeriod ?? cls == PulsatorClass.TypeIICepheid)
+            && DoublePeriod(data, grid, ranked[0], orders, refChi2) is { } dbl)
+        {
+            // On real RV Tau data the alternation can be genuine and still not be what a catalogue quotes, so by
+            // default the double period is listed for the reviewer, not chosen.
+            if (s.PreferDoublePeriod) { ranked.Insert(0, dbl); notes.Add("double_period_preferred"); }
+            else { doubleCandidate = dbl; notes.Add("double_period_favoured"); }
+        }
 
         double tol = Math.Max(0.5 / data.Baseline, 2 * grid.Df);
         var peaks = new List<PeriodPeak>();
@@ -88,6 +146,15 @@ internal static class PeriodSearchEngine
             stronger.Add(c.Frequency);
         }
 
+        if (doubleCandidate is { } dc)
+        {
+            var (fap, method) = Fap(dc.Power, data, grid);
+            peaks.Add(new PeriodPeak(dc.Frequency, dc.Power, fap, method, AliasLabels.For(dc.Frequency, stronger, tol))
+            {
+                ModelPower = Math.Clamp(1 - dc.ModelChi2!.Value / chiRef, 0, 1), ModelFrequency = dc.ModelFrequency,
+            });
+        }
+
         var offsets = modelUsable && ranked[0].ModelChi2 is not null
             ? ObserverOffsets(data.Bands, orders, ranked[0].ModelFrequency)
             : [];
@@ -101,15 +168,30 @@ internal static class PeriodSearchEngine
         var plotIdx = SpectralTools.Thin(power);
         var plot = Thinned(power, grid, plotIdx);
         var wy = new double[plot.X.Length];
-        // A (vectorised) complex multiply costs a small fraction of a sin/cos pair: rotate along the grid unless it is
-        // much longer than the plot.
-        if (grid.Count <= 30L * plotIdx.Length) SpectralTools.WindowOnGrid(data.AllT, grid.F0, grid.Df, plotIdx, wy);
-        else SpectralTools.Window(data.AllT, plot.X, wy);
+        SpectralTools.WindowOnGrid(data.AllT, grid.F0, grid.Df, plotIdx, wy);
 
-        double bestFap = bootFap ?? peaks[0].Fap ?? 1.0;
+        // Detection asks whether any listed peak is significant; which of them is the period is the ranking's job
+        // (a preferred double period has little single-sinusoid power of its own).
+        double bestFap = bootFap ?? peaks.Min(p => p.Fap ?? 1.0);
+
+        // The GLS runs on raw magnitudes, where observer zero points that follow the time of night (observers at
+        // different sites) look like a 1 c/d signal. The detection must also beat the constants-and-offsets model.
+        double? modelFap = null;
+        if (modelUsable && ranked[0].ModelChi2 is { } bestChi2)
+        {
+            int free = 0, total = 0;
+            for (int b = 0; b < data.Bands.Count; b++)
+            {
+                int m = data.Bands[b].Observers.Length;
+                total += orders[b] > 0 ? HarmonicFit.ParamCount(orders[b], m) : HarmonicFit.ParamCount(0, m);
+                free += 2 * orders[b];
+            }
+            modelFap = FalseAlarm.Model(Math.Clamp(1 - bestChi2 / chiRef, 0, 1), data.Count, free, total, orders.Max(), grid.FMax, data.Baseline);
+        }
         return result with
         {
-            FailureReason = bestFap > s.MaxFalseAlarmProbability ? "no_significant_period" : null,
+            FailureReason = bestFap > s.MaxFalseAlarmProbability || modelFap > s.MaxFalseAlarmProbability ? "no_significant_period" : null,
+            ModelFap = modelFap,
             Peaks = peaks,
             Periodogram = plot,
             Window = new Curve(plot.X, wy),
@@ -118,6 +200,38 @@ internal static class PeriodSearchEngine
             BootstrapSamples = Math.Max(0, s.BootstrapSamples),
             Notes = notes,
         };
+    }
+
+    /// <summary>
+    /// RV Tauri stars alternate deep and shallow minima: the strongest peak is then at twice the formal frequency.
+    /// The model at f/2 with twice the harmonics contains the model at f exactly (nested), so it is preferred only
+    /// when BIC says the extra (odd half-) harmonics are real: chi2 drop > sum_b (extra parameters_b) ln N_b, with chi2
+    /// in units of the residual variance (scaled by max(1, chi2_red)).
+    /// </summary>
+    private static Candidate? DoublePeriod(SearchData data, FrequencyGrid grid, Candidate best, int[] orders, double[] refChi2)
+    {
+        if (best.ModelChi2 is not { } parentChi2) return null;
+        double fh = best.ModelFrequency / 2;
+        if (fh < grid.F0) return null;
+        var doubled = new int[orders.Length];
+        double penalty = 0;
+        for (int b = 0; b < orders.Length; b++)
+        {
+            if (orders[b] <= 0) continue;
+            int k2 = HarmonicFit.SupportedHarmonics(data.Bands[b], 2 * orders[b]);
+            if (k2 < 2 * orders[b]) return null;
+            doubled[b] = k2;
+            penalty += 2 * (k2 - orders[b]) * Math.Log(data.Bands[b].Count);
+        }
+        var (x, v) = Brent.Minimize(f => HarmonicFit.TotalChi2(data.Bands, doubled, refChi2, f), fh - grid.Df, fh + grid.Df, grid.Df * 1e-3);
+        // Residual chi2 per degree of freedom of the larger model scales the test: real light curves with
+        // cycle-to-cycle changes leave structured residuals that extra harmonics always reduce a little.
+        int dof = 0;
+        for (int b = 0; b < orders.Length; b++)
+            if (orders[b] > 0) dof += data.Bands[b].Count - HarmonicFit.ParamCount(doubled[b], data.Bands[b].Observers.Length);
+        double scale = dof > 0 ? Math.Max(1, v / dof) : double.PositiveInfinity;
+        if (!(parentChi2 - v > penalty * scale)) return null;
+        return new Candidate(x, CombinedPowerAt(data, x)) { ModelFrequency = x, ModelChi2 = v };
     }
 
     private static Curve Thinned(double[] power, FrequencyGrid grid, int[] idx)
@@ -155,6 +269,43 @@ internal static class PeriodSearchEngine
         if (data.Bands.Count > 1)
             for (int k = 0; k < power.Length; k++) power[k] /= chi0;
         return power;
+    }
+
+    /// <summary>
+    /// Maximum of the combined power near grid peak <paramref name="fk"/>: two zoom levels of 33 frequencies
+    /// (+- df, then +- df/16; final step df/256), a parabola through the best three, one last evaluation there.
+    /// Each level is one kernel call per band: a call has a fixed cost far above that of one frequency, so this
+    /// beats a point-by-point 1-D search.
+    /// </summary>
+    internal static (double F, double Power) RefinePeak(SearchData data, double fk, double df)
+    {
+        const int m = 33;
+        double center = fk, half = df, bestF = fk, bestP = double.NegativeInfinity;
+        double step = 0;
+        double[] p = [];
+        int j = 0;
+        for (int level = 0; level < 2; level++)
+        {
+            step = 2 * half / (m - 1);
+            var g = new FrequencyGrid(center - half, step, m, false);
+            p = CombinedPower(data, g);
+            j = 0;
+            for (int i = 1; i < m; i++) if (p[i] > p[j]) j = i;
+            if (p[j] > bestP) { bestP = p[j]; bestF = g.At(j); }
+            center = g.At(j);
+            half = step;
+        }
+        if (j > 0 && j < m - 1)
+        {
+            double denom = p[j - 1] - 2 * p[j] + p[j + 1];
+            if (denom < 0)
+            {
+                double fx = center + 0.5 * step * (p[j - 1] - p[j + 1]) / denom;
+                double px = CombinedPowerAt(data, fx);
+                if (px > bestP) { bestP = px; bestF = fx; }
+            }
+        }
+        return (bestF, bestP);
     }
 
     internal static double CombinedPowerAt(SearchData data, double f)
@@ -301,7 +452,7 @@ internal static class PeriodSearchEngine
         if (startOrders.All(o => o <= 0)) return Unrefined("too_few_points");
         var refChi2 = data.Bands.Select(b => HarmonicFit.Fit(b, 0, 0) ?? b.Chi2Mean).ToArray();
         double half = 0.5 / T;
-        const int steps = 40;
+        const int steps = 20;
         double bestF = frequency, bestC = double.PositiveInfinity;
         for (int i = 0; i <= steps; i++)
         {

@@ -112,6 +112,32 @@ internal sealed class SearchData
         };
     }
 
+    /// <summary>A copy with each point's observer offset (per band) subtracted from its magnitude.</summary>
+    public SearchData WithOffsetsRemoved(IReadOnlyList<LightCurves.ObserverOffset> offsets)
+    {
+        var bands = Bands.Select(b =>
+        {
+            var o = new double[b.Observers.Length];
+            foreach (var x in offsets)
+                if (x.Band == b.Band) { int j = Array.IndexOf(b.Observers, x.Observer); if (j >= 0) o[j] = x.Offset; }
+            var y = new double[b.Count];
+            double ws = 0, wy = 0;
+            for (int i = 0; i < y.Length; i++) { y[i] = b.Y[i] - o[b.Obs[i]]; ws += b.W[i]; wy += b.W[i] * y[i]; }
+            double ybar = wy / ws, chi0 = 0;
+            for (int i = 0; i < y.Length; i++) { double d = y[i] - ybar; chi0 += b.W[i] * d * d; }
+            return new BandSeries
+            {
+                Band = b.Band, T = b.T, Y = y, W = b.W, Obs = b.Obs, Observers = b.Observers,
+                ObserverCounts = b.ObserverCounts, Chi2Mean = chi0, YMean = ybar,
+            };
+        }).ToArray();
+        return new SearchData
+        {
+            Bands = bands, ReferenceEpoch = ReferenceEpoch, Baseline = Baseline, UsablePoints = UsablePoints,
+            SkippedBands = SkippedBands, Count = Count, AllT = AllT, AllW = AllW,
+        };
+    }
+
     public static double Weight(double magErr)
     {
         double s = Math.Max(magErr, ErrorFloor);

@@ -28,57 +28,76 @@ internal static class SpectralTools
     }
 
     /// <summary>
-    /// The same window at grid indices <paramref name="indices"/> (increasing) of the regular grid f0 + k df, by
-    /// rotating each point's phasor one grid step at a time: one complex multiply per point and step instead of a
-    /// sin/cos, re-seeded exactly every 512 steps so rounding cannot accumulate. Cheaper than <see cref="Window"/>
-    /// when the grid is not much longer than the list of indices.
+    /// The same window at grid indices <paramref name="indices"/> (increasing) of the regular grid f0 + k df. Each
+    /// point's phasor is rotated from one requested index to the next by a table of its step powers
+    /// exp(-2 pi i g df t), g up to the largest gap: one complex multiply per point and plotted frequency instead of a
+    /// sin/cos pair; re-seeded exactly every 128 plotted frequencies so rounding cannot accumulate. Falls back to
+    /// <see cref="Window"/> when the table would be large (very long grids thinned hard).
     /// </summary>
     public static void WindowOnGrid(ReadOnlySpan<double> t, double f0, double df, ReadOnlySpan<int> indices, Span<double> result)
     {
-        int n = t.Length;
-        if (n == 0 || indices.Length == 0) { result.Clear(); return; }
-        var re = new double[n]; var im = new double[n]; var sr = new double[n]; var si = new double[n];
+        int n = t.Length, m = indices.Length;
+        if (n == 0 || m == 0) { result.Clear(); return; }
+        int maxGap = 1;
+        for (int j = 1; j < m; j++) maxGap = Math.Max(maxGap, indices[j] - indices[j - 1]);
+        if ((long)maxGap * n > 2_000_000)
+        {
+            var f = new double[m];
+            for (int j = 0; j < m; j++) f[j] = f0 + indices[j] * df;
+            Window(t, f, result);
+            return;
+        }
+        // Powers s^g, g = 1..maxGap, of each point's one-step phasor s = exp(-2 pi i df t), row g-1.
+        var pr = new double[maxGap * n]; var pi = new double[maxGap * n];
         for (int i = 0; i < n; i++)
         {
             (double s, double c) = Math.SinCos(2 * Math.PI * df * t[i]);
-            sr[i] = c; si[i] = -s;
+            pr[i] = c; pi[i] = -s;
         }
-        int last = indices[^1], next = 0;
-        for (int k = 0; k <= last; k++)
+        for (int g = 1; g < maxGap; g++)
         {
-            if ((k & 511) == 0)
+            int o = g * n, p = (g - 1) * n;
+            for (int i = 0; i < n; i++)
             {
-                double w = 2 * Math.PI * (f0 + k * df);
+                pr[o + i] = pr[p + i] * pr[i] - pi[p + i] * pi[i];
+                pi[o + i] = pr[p + i] * pi[i] + pi[p + i] * pr[i];
+            }
+        }
+        var re = new double[n]; var im = new double[n];
+        for (int j = 0; j < m; j++)
+        {
+            if (j % 128 == 0)
+            {
+                double w = 2 * Math.PI * (f0 + indices[j] * df);
                 for (int i = 0; i < n; i++)
                 {
                     (double s, double c) = Math.SinCos(w * t[i]);
                     re[i] = c; im[i] = -s;
                 }
             }
-            if (indices[next] == k)
+            else
             {
-                double a = 0, b = 0;
-                for (int i = 0; i < n; i++) { a += re[i]; b += im[i]; }
-                a /= n; b /= n;
-                result[next] = a * a + b * b;
-                next++;
-                if (next == indices.Length) break;
+                int g = indices[j] - indices[j - 1];
+                Rotate(re, im, pr.AsSpan((g - 1) * n, n), pi.AsSpan((g - 1) * n, n));
             }
-            Rotate(re, im, sr, si);
+            double a = 0, b = 0;
+            for (int i = 0; i < n; i++) { a += re[i]; b += im[i]; }
+            a /= n; b /= n;
+            result[j] = a * a + b * b;
         }
     }
 
     /// <summary>(re, im) *= (sr, si) elementwise; System.Numerics vectors where the CPU has them.</summary>
-    private static void Rotate(double[] re, double[] im, double[] sr, double[] si)
+    private static void Rotate(Span<double> re, Span<double> im, ReadOnlySpan<double> sr, ReadOnlySpan<double> si)
     {
         int n = re.Length, i = 0;
         if (System.Numerics.Vector.IsHardwareAccelerated)
         {
             int width = System.Numerics.Vector<double>.Count;
-            var vre = System.Runtime.InteropServices.MemoryMarshal.Cast<double, System.Numerics.Vector<double>>(re.AsSpan());
-            var vim = System.Runtime.InteropServices.MemoryMarshal.Cast<double, System.Numerics.Vector<double>>(im.AsSpan());
-            var vsr = System.Runtime.InteropServices.MemoryMarshal.Cast<double, System.Numerics.Vector<double>>(sr.AsSpan());
-            var vsi = System.Runtime.InteropServices.MemoryMarshal.Cast<double, System.Numerics.Vector<double>>(si.AsSpan());
+            var vre = System.Runtime.InteropServices.MemoryMarshal.Cast<double, System.Numerics.Vector<double>>(re);
+            var vim = System.Runtime.InteropServices.MemoryMarshal.Cast<double, System.Numerics.Vector<double>>(im);
+            var vsr = System.Runtime.InteropServices.MemoryMarshal.Cast<double, System.Numerics.Vector<double>>(sr);
+            var vsi = System.Runtime.InteropServices.MemoryMarshal.Cast<double, System.Numerics.Vector<double>>(si);
             for (int v = 0; v < vre.Length; v++)
             {
                 var r0 = vre[v];

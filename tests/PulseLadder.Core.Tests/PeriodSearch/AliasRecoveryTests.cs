@@ -17,8 +17,7 @@ public abstract class AliasRecoveryBase(ITestOutputHelper output)
         for (int i = 0; i < cases; i++)
         {
             var star = SyntheticCampaign.Make(kind, seed0 + i);
-            // n0 = 5, the coarsest grid allowed, keeps this suite fast on the scalar kernel; the default is 10.
-            var r = PeriodFinder.FindPeriods(star.Points, hint, new PeriodSearchSettings { Oversampling = 5 });
+            var r = PeriodFinder.FindPeriods(star.Points, hint, new PeriodSearchSettings());
             double T = r.BaselineDays;
             double fTrue = 1 / star.PeriodDays;
             // Within a quarter of a peak width: aliases (daily, annual, harmonics) are at least ~1.6/T away.

@@ -31,6 +31,22 @@ public class MultibandModelTests
     }
 
     [Fact]
+    public void FindPeriods_SearchesAgainWithOffsetsRemoved_WhenOffsetsAreLarge()
+    {
+        // bob's zero point pushed 0.15 mag further in both bands: comparable with an RRc amplitude.
+        var star = SyntheticCampaign.Make(SyntheticCampaign.Kind.RRc, 21);
+        var pts = star.Points.Select(p => p.Observer == "bob" ? p with { Mag = p.Mag + 0.15 } : p).ToList();
+        var r = PeriodFinder.FindPeriods(pts, PulsatorClass.RRLyraeC, S with { Oversampling = 5 });
+        Assert.Contains("offsets_removed_second_pass", r.Notes);
+        Assert.Equal(1 / star.PeriodDays, r.Peaks[0].Frequency, 0.25 / r.BaselineDays);
+        var bobV = r.ObserverOffsets.Single(o => o.Band == "V" && o.Observer == "bob");
+        Assert.True(Math.Abs(bobV.Offset - (0.035 + 0.15)) < 3 * bobV.Error, $"{bobV.Offset} +- {bobV.Error}");
+        // The unmodified star does not need the second pass.
+        var plain = PeriodFinder.FindPeriods(star.Points, PulsatorClass.RRLyraeC, S with { Oversampling = 5 });
+        Assert.DoesNotContain("offsets_removed_second_pass", plain.Notes);
+    }
+
+    [Fact]
     public void FindPeriods_UsesMultibandFap_WhenTwoBands()
     {
         var star = SyntheticCampaign.Make(SyntheticCampaign.Kind.RRc, 5);
@@ -99,4 +115,52 @@ public class MultibandModelTests
 
     private static double Gauss(Random rng)
         => Math.Sqrt(-2 * Math.Log(1.0 - rng.NextDouble())) * Math.Cos(2 * Math.PI * rng.NextDouble());
+}
+
+public class DoublePeriodTests
+{
+    /// <summary>RV Tauri-like curve: deep and shallow minima alternate, so most power sits at twice the formal
+    /// frequency (the usual description of RV Tau light curves; amplitudes chosen here).</summary>
+    private static List<Pipeline.LightCurvePoint> RvTau(double period, int seed, double alternation)
+    {
+        var rng = new Random(seed);
+        var pts = new List<Pipeline.LightCurvePoint>();
+        for (int night = 0; night < 730; night++)
+        {
+            if (night % 365 > 240 || rng.NextDouble() < 0.3) continue;
+            double t = 2_460_000.5 + night * 0.99727 + (rng.NextDouble() * 4 - 2) / 24;
+            double ph = 2 * Math.PI * t / period;
+            double m = 13 + 0.5 * Math.Sin(2 * ph) + 0.12 * Math.Sin(4 * ph + 1) + alternation * Math.Sin(ph + 0.5)
+                + 0.02 * Math.Sqrt(-2 * Math.Log(1 - rng.NextDouble())) * Math.Cos(2 * Math.PI * rng.NextDouble());
+            pts.Add(new Pipeline.LightCurvePoint(0, t, "I", m, 0.02, "a"));
+        }
+        return pts;
+    }
+
+    [Fact]
+    public void FindPeriods_OffersFormalPeriod_WhenMinimaAlternate()
+    {
+        var pts = RvTau(36.5, 1, 0.1);
+        // By default the double period is listed last for the reviewer...
+        var listed = PeriodFinder.FindPeriods(pts, PulsatorClass.TypeIICepheid, new PeriodSearchSettings());
+        Assert.Contains("double_period_favoured", listed.Notes);
+        Assert.Equal(36.5 / 2, listed.Peaks[0].PeriodDays, 0.05);
+        Assert.Equal(36.5, listed.Peaks[^1].PeriodDays, 0.1);
+        Assert.Contains(listed.Peaks[^1].Aliases, a => a.StartsWith("double_period_of:", StringComparison.Ordinal));
+        // ...and chosen when asked.
+        var r = PeriodFinder.FindPeriods(pts, PulsatorClass.TypeIICepheid, new PeriodSearchSettings { PreferDoublePeriod = true });
+        Assert.Null(r.FailureReason);
+        Assert.Contains("double_period_preferred", r.Notes);
+        Assert.Equal(36.5, r.Peaks[0].PeriodDays, 0.1);
+        Assert.Contains(r.Peaks.Skip(1), p => p.Aliases.Any(a => a.StartsWith("half_period_of:", StringComparison.Ordinal)));
+    }
+
+    [Fact]
+    public void FindPeriods_KeepsPeriod_WhenMinimaEqual()
+    {
+        var pts = RvTau(36.5, 2, 0.0);
+        var r = PeriodFinder.FindPeriods(pts, PulsatorClass.TypeIICepheid, new PeriodSearchSettings());
+        Assert.DoesNotContain("double_period_favoured", r.Notes);
+        Assert.Equal(36.5 / 2, r.Peaks[0].PeriodDays, 0.05);
+    }
 }

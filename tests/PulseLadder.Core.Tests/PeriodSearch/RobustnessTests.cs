@@ -118,4 +118,29 @@ public class RobustnessTests
         Assert.Equal(["I"], r.SkippedBands);
         Assert.Equal(0.1860514, r.Peaks[0].Frequency, 2e-6);
     }
+
+    [Fact]
+    public void FindPeriods_DoesNotThrow_WhenEveryPointHasItsOwnObserver()
+    {
+        // 60 observers with 2-5 points each: the offset model cannot be afforded and must step aside, not fail.
+        var star = SyntheticCampaign.Make(SyntheticCampaign.Kind.RRc, 8);
+        var pts = star.Points.Select((p, i) => p with { Observer = "o" + (i / 7 % 60) }).ToList();
+        var s = S with { Oversampling = 5 };
+        var r = PeriodFinder.FindPeriods(pts, PulsatorClass.RRLyraeC, s);
+        AssertSerialisable(r);
+        var e = PeriodFinder.RefinePeriod(pts, r.Peaks[0].Frequency, r, s);
+        AssertSerialisable(e);
+        Assert.Equal(1 / star.PeriodDays, r.Peaks[0].Frequency, 0.25 / r.BaselineDays);
+    }
+
+    [Fact]
+    public void FindPeriods_ResultSerialises_WhenPeriodFound()
+    {
+        var r = PeriodFinder.FindPeriods(D30.Points(), PulsatorClass.Unknown, S);
+        var e = PeriodFinder.RefinePeriod(D30.Points(), r.Peaks[0].Frequency, r, S);
+        var json = JsonSerializer.Serialize(r, Json);
+        Assert.Contains("\"Peaks\"", json);
+        Assert.Equal(r.Peaks.Count, JsonSerializer.Deserialize<PeriodSearchResult>(json)!.Peaks.Count);
+        AssertSerialisable(e);
+    }
 }

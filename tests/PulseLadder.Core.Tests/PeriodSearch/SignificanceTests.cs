@@ -54,6 +54,30 @@ public class SignificanceTests
         Assert.Equal(expected, FalseAlarm.Multiband(z, 80, 1, 1.5, 400), 1e-12);
     }
 
+    [Theory]
+    [InlineData(0.05, 200, 2)]
+    [InlineData(0.2, 90, 3)]
+    [InlineData(0.4, 60, 2)]
+    public void Multiband_MatchesIncompleteBeta_WhenSeveralBands(double z, int n, int bands)
+    {
+        // The closed-form series must equal the regularised incomplete beta I_{1-z}((N-3B)/2, B) evaluated by a
+        // general-purpose library (MathNet.Numerics SpecialFunctions.BetaRegularized), then N_eff = f_max T applied.
+        double single = MathNet.Numerics.SpecialFunctions.BetaRegularized((n - 3.0 * bands) / 2, bands, 1 - z);
+        double nEff = 2.0 * 300;
+        double expected = 1 - Math.Pow(1 - single, nEff);
+        Assert.Equal(expected, FalseAlarm.Multiband(z, n, bands, 2.0, 300), 1e-9);
+    }
+
+    [Fact]
+    public void Model_MatchesIncompleteBeta_ForSixFreeParameters()
+    {
+        // 3 harmonics in one band (6 free parameters, 9 in all with constant and two offsets), N = 120, z = 0.3:
+        // single-frequency FAP = I_{1-z}((N-9)/2, 3) (MathNet.Numerics BetaRegularized), times 3 f_max T frequencies.
+        double single = MathNet.Numerics.SpecialFunctions.BetaRegularized((120 - 9) / 2.0, 3, 0.7);
+        double expected = 1 - Math.Pow(1 - single, 3 * 1.25 * 500);
+        Assert.Equal(expected, FalseAlarm.Model(0.3, 120, 6, 9, 3, 1.25, 500), 1e-9);
+    }
+
     [Fact]
     public void Baluev_MatchesAstropyReference_OnCommittedDatasets()
     {
