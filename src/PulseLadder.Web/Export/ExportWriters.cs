@@ -105,8 +105,8 @@ internal static class ExportWriters
             w.WriteElementString("DESCRIPTION", ns, meta.Methods);
             Param(w, ns, "pipeline_version", "meta.version", string.Join(",", meta.PipelineVersions), "Pipeline version(s) of the exported results");
             Param(w, ns, "software_version", "meta.version", meta.SoftwareVersion, "Version of the software that wrote this file");
-            Param(w, ns, "relation_ids", "meta.id;meta.ref", string.Join(",", meta.RelationIds), "Period-luminosity relations used by the distances");
-            Param(w, ns, "anchor_ids", "meta.id;meta.ref", string.Join(",", meta.AnchorIds), "Zero-point anchors used by the distances");
+            Param(w, ns, "relation_ids", "meta.ref", string.Join(",", meta.RelationIds), "Period-luminosity relations used by the distances");
+            Param(w, ns, "anchor_ids", "meta.ref", string.Join(",", meta.AnchorIds), "Zero-point anchors used by the distances");
             Param(w, ns, "accepted_only", "meta.code", meta.AcceptedOnly ? "true" : "false", "Only stars a reviewer accepted");
             foreach (var c in columns)
             {
