@@ -61,8 +61,11 @@ public static class MethodsReport
         {
             sb.Append("Each period was refined by nonlinear least squares with a Fourier series whose order was chosen per band by BIC (at most ")
               .Append(Distinct(periods.Select(a => a.Settings.PeriodSearch.MaxRefineHarmonics.ToString(ci))))
-              .Append(" harmonics) and checked against Stellingwerf phase dispersion minimisation")
-              .Append(ci, $" (period methods: {Distinct(periods.Select(a => a.Period!.Method))}). ");
+              .Append(" harmonics)");
+            int pdm = periods.Count(a => a.Period!.PdmTheta is not null);
+            if (pdm > 0)
+                sb.Append(ci, $" and, for {pdm} star{Plural(pdm)}, checked against Stellingwerf phase dispersion minimisation ({Distinct(periods.Select(a => a.Settings.PeriodSearch.PdmBins.ToString(ci)))} phase bins)");
+            sb.Append(ci, $" (period methods: {Distinct(periods.Select(a => a.Period!.Method))}). ");
             int reviewed = analyses.Count(a => a.Overrides.PeriodDays is not null || a.Overrides.Class is not null);
             if (reviewed > 0) sb.Append(ci, $"For {reviewed} star{Plural(reviewed)} a reviewer chose the period or class. ");
             sb.Append("Intensity-mean magnitudes come from Fourier fits of at most ")

@@ -256,3 +256,24 @@ public sealed class ExportTests(ExportFixture fx) : IClassFixture<ExportFixture>
         Assert.False(r.Identical);
     }
 }
+
+public sealed class ReproduceOverrideTests
+{
+    [Fact]
+    public async Task Reproduce_ReportsNoDifference_WhenAReviewerChoseThePeriod()
+    {
+        await using var t = await TestApp.StartAsync();
+        (await t.Client.PostAsync("/api/v1/uploads", Fixtures.Form(Fixtures.StarList, [("n.csv", Fixtures.Photometry("T-CEP-1", 5.37, 13.9))]))).EnsureSuccessStatusCode();
+        Assert.Equal(0, await t.WaitForAnalysesAsync(TimeSpan.FromSeconds(60)));
+        // A period slightly off the best peak, as a reviewer might choose it: the rerun must honour the stored override.
+        (await t.Client.PostAsJsonAsync("/api/v1/stars/1/decisions", new { action = "choose_period", period_days = 5.371, by = "test" })).EnsureSuccessStatusCode();
+        Assert.Equal(0, await t.WaitForAnalysesAsync(TimeSpan.FromSeconds(60)));
+        var r = Reproduction.Run(t.Db, "T-CEP-1");
+        Assert.True(r.Identical, string.Join("; ", r.Differences.Select(d => $"{d.Quantity}: {d.Stored} vs {d.Rerun}")));
+        Assert.Equal(2, r.Revision);
+        // Without the stored override the pipeline would pick its own period: the override really is replayed.
+        Assert.Contains(r.KeyNumbers, k => k.Quantity == "period_days");
+        using var c = t.Db.Open();
+        Assert.Equal(5.371, Dapper.SqlMapper.ExecuteScalar<double>(c, "SELECT chosen_period_days FROM stars WHERE id = 1"));
+    }
+}
