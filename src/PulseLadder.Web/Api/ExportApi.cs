@@ -14,6 +14,7 @@ public static class ExportApi
         api.MapGet("/fields/{fieldId:long}/export", Export).WithName("ExportField");
         api.MapGet("/export", ExportCampaign).WithName("ExportCampaign");
         api.MapGet("/fields/{fieldId:long}/methods", Methods).WithName("GetFieldMethods");
+        api.MapGet("/fields/{fieldId:long}/figures/pl.svg", PlFigure).WithName("GetFieldPlFigure");
     }
 
     /// <summary>One field's rows; <c>columns</c> is a comma-separated subset of the known columns (400 naming the first unknown one).</summary>
@@ -47,6 +48,16 @@ public static class ExportApi
         if (FieldStore.Get(c, fieldId) is null) return FieldsApi.NotFound($"No field with id {fieldId}.");
         var set = ExportSet.Load(c, [fieldId], acceptedOnly ?? true);
         return TypedResults.Text(set.Methods() + "\n", "text/plain; charset=utf-8");
+    }
+
+    /// <summary>The period-luminosity diagram (SVG) of a field's stored results; accepted stars only unless <c>accepted_only=false</c>.</summary>
+    public static Results<ContentHttpResult, ProblemHttpResult> PlFigure(Database db, long fieldId, [FromQuery(Name = "accepted_only")] bool? acceptedOnly)
+    {
+        using var c = db.Open();
+        var f = FieldStore.Get(c, fieldId);
+        if (f is null) return FieldsApi.NotFound($"No field with id {fieldId}.");
+        var set = ExportSet.Load(c, [fieldId], acceptedOnly ?? true);
+        return TypedResults.Text(Core.Reporting.PlDiagramSvg.Write(set.Analyses, f.Name), "image/svg+xml; charset=utf-8");
     }
 
     private static Results<FileContentHttpResult, ProblemHttpResult> Write(ExportSet set, string fmt, string title, bool acceptedOnly, string? columns)

@@ -25,3 +25,14 @@ public sealed class ExportFixture : IAsyncLifetime
 
     public async Task DisposeAsync() => await App.DisposeAsync();
 }
+
+/// <summary>
+/// The export tests share one server and run after the parallel test classes, one at a time. When this server
+/// started together with ApiTests' hosts, an ApiTests star was twice left unanalysed after 60 s; suspected cause:
+/// hosts in one process share Hangfire's global in-memory storage, so one host's job can run on another.
+/// </summary>
+[CollectionDefinition(Name, DisableParallelization = true)]
+public sealed class ExportCollection : ICollectionFixture<ExportFixture>
+{
+    public const string Name = "export";
+}

@@ -9,7 +9,8 @@ using PulseLadder.Web.Export;
 
 namespace PulseLadder.Web.Tests.Export;
 
-public sealed class ExportTests(ExportFixture fx) : IClassFixture<ExportFixture>
+[Collection(ExportCollection.Name)]
+public sealed class ExportTests(ExportFixture fx)
 {
     private static readonly CultureInfo Inv = CultureInfo.InvariantCulture;
 
@@ -257,6 +258,7 @@ public sealed class ExportTests(ExportFixture fx) : IClassFixture<ExportFixture>
     }
 }
 
+[Collection(ExportCollection.Name)]
 public sealed class ReproduceOverrideTests
 {
     [Fact]
@@ -275,5 +277,27 @@ public sealed class ReproduceOverrideTests
         Assert.Contains(r.KeyNumbers, k => k.Quantity == "period_days");
         using var c = t.Db.Open();
         Assert.Equal(5.371, Dapper.SqlMapper.ExecuteScalar<double>(c, "SELECT chosen_period_days FROM stars WHERE id = 1"));
+    }
+}
+
+[Collection(ExportCollection.Name)]
+public sealed class FigureTests(ExportFixture fx)
+{
+    [Fact]
+    public async Task PlFigure_IsWellFormedSvg_WithOnePointPerStarWithADistance()
+    {
+        var svg = await fx.App.Client.GetStringAsync($"/api/v1/fields/{fx.FieldId}/figures/pl.svg?accepted_only=false");
+        var doc = System.Xml.Linq.XDocument.Parse(svg);
+        System.Xml.Linq.XNamespace ns = "http://www.w3.org/2000/svg";
+        Assert.Equal(ns + "svg", doc.Root!.Name);
+        var json = await fx.App.Client.GetFromJsonAsync<JsonElement>($"/api/v1/fields/{fx.FieldId}/export?format=json&columns=star,distance_modulus,relation_id");
+        var withDistance = json.GetProperty("rows").EnumerateArray().Where(r => r.GetProperty("distance_modulus").ValueKind == JsonValueKind.Number).ToList();
+        Assert.NotEmpty(withDistance);
+        var stars = doc.Descendants(ns + "g").Where(g => (string?)g.Attribute("class") == "star").ToList();
+        Assert.Equal(withDistance.Count, stars.Count);
+        foreach (var r in withDistance)
+            Assert.Contains(stars, g => g.Element(ns + "title")!.Value.StartsWith(r.GetProperty("star").GetString() + ":", StringComparison.Ordinal));
+        Assert.Single(doc.Descendants(ns + "line"), l => (string?)l.Attribute("class") == "relation");
+        Assert.Contains(withDistance[0].GetProperty("relation_id").GetString()!, svg);
     }
 }
