@@ -56,7 +56,7 @@ public static class PlDiagramSvg
         foreach (var t in Ticks(yMin, yMax))
             sb.Append(ci, $"<line x1=\"{F(Left)}\" y1=\"{F(Y(t))}\" x2=\"{F(Left + 5)}\" y2=\"{F(Y(t))}\" stroke=\"black\"/><text x=\"{F(Left - 6)}\" y=\"{F(Y(t) + 4)}\" text-anchor=\"end\">{Num(t)}</text>\n");
         sb.Append(ci, $"<text x=\"{F((Left + W - Right) / 2)}\" y=\"{F(H - 20)}\" text-anchor=\"middle\">log10 P (d)</text>\n");
-        sb.Append(ci, $"<text transform=\"translate(18 {F((Top + H - Bottom) / 2)}) rotate(-90)\" text-anchor=\"middle\">{Esc(band)}, extinction-corrected (mag)</text>\n");
+        sb.Append(ci, $"<text transform=\"translate(18 {F((Top + H - Bottom) / 2)}) rotate(-90)\" text-anchor=\"middle\">{Esc(rel?.IsWesenheit == true ? band + " (reddening-free)" : band + "_0 (extinction-corrected)")} (mag)</text>\n");
 
         if (rel is not null && muMean is { } mu)
         {
