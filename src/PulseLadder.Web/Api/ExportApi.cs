@@ -15,6 +15,7 @@ public static class ExportApi
         api.MapGet("/export", ExportCampaign).WithName("ExportCampaign");
         api.MapGet("/fields/{fieldId:long}/methods", Methods).WithName("GetFieldMethods");
         api.MapGet("/fields/{fieldId:long}/figures/pl.svg", PlFigure).WithName("GetFieldPlFigure");
+        api.MapGet("/stars/{starId:long}/figures/lightcurve.svg", LightCurveFigure).WithName("GetStarLightCurveFigure");
     }
 
     /// <summary>One field's rows; <c>columns</c> is a comma-separated subset of the known columns (400 naming the first unknown one).</summary>
@@ -58,6 +59,19 @@ public static class ExportApi
         if (f is null) return FieldsApi.NotFound($"No field with id {fieldId}.");
         var set = ExportSet.Load(c, [fieldId], acceptedOnly ?? true);
         return TypedResults.Text(Core.Reporting.PlDiagramSvg.Write(set.Analyses, f.Name), "image/svg+xml; charset=utf-8");
+    }
+
+    /// <summary>The phased light curve (SVG) of a star's newest stored analysis for the current pipeline version.</summary>
+    public static Results<ContentHttpResult, ProblemHttpResult> LightCurveFigure(Database db, long starId)
+    {
+        using var c = db.Open();
+        var s = StarStore.Get(c, starId);
+        if (s is null) return FieldsApi.NotFound($"No star with id {starId}.");
+        var a = AnalysisStore.Latest(c, starId, Core.Pipeline.PipelineVersion.Current);
+        if (a is null || Json.Deserialize<Core.Pipeline.StarAnalysis>(a.ResultJson) is not { } result)
+            return FieldsApi.NotFound($"Star '{s.Name}' has no stored analysis yet.");
+        var points = Core.TimeScales.BarycentricTime.ToBjdTdb(ObservationStore.ForStar(c, starId), StarStore.ToStarInfo(s).Position).Points;
+        return TypedResults.Text(Core.Reporting.LightCurveSvg.Write(result, points), "image/svg+xml; charset=utf-8");
     }
 
     private static Results<FileContentHttpResult, ProblemHttpResult> Write(ExportSet set, string fmt, string title, bool acceptedOnly, string? columns)

@@ -300,4 +300,20 @@ public sealed class FigureTests(ExportFixture fx)
         Assert.Single(doc.Descendants(ns + "line"), l => (string?)l.Attribute("class") == "relation");
         Assert.Contains(withDistance[0].GetProperty("relation_id").GetString()!, svg);
     }
+
+    [Fact]
+    public async Task LightCurveFigure_DrawsEveryUsedObservationTwice_AndOneFitPerBand()
+    {
+        var stars = await fx.App.Client.GetFromJsonAsync<JsonElement>($"/api/v1/fields/{fx.FieldId}/stars");
+        long id = stars.GetProperty("items").EnumerateArray().Single(s => s.GetProperty("star").GetString() == "T-CEP-1").GetProperty("star_id").GetInt64();
+        var detail = await fx.App.Client.GetFromJsonAsync<JsonElement>($"/api/v1/stars/{id}");
+        int used = detail.GetProperty("observations").EnumerateArray().Count(o => o.GetProperty("used").GetBoolean());
+        int fits = detail.GetProperty("result").GetProperty("fits").GetArrayLength();
+        var svg = await fx.App.Client.GetStringAsync($"/api/v1/stars/{id}/figures/lightcurve.svg");
+        var doc = System.Xml.Linq.XDocument.Parse(svg);
+        System.Xml.Linq.XNamespace ns = "http://www.w3.org/2000/svg";
+        Assert.Equal(2 * used, doc.Descendants(ns + "circle").Count(e => (string?)e.Attribute("class") == "point"));
+        Assert.Equal(fits, doc.Descendants(ns + "polyline").Count(e => (string?)e.Attribute("class") == "fit"));
+        Assert.Equal(["I", "V"], doc.Descendants(ns + "g").Select(g => (string?)g.Attribute("data-band")).OfType<string>().ToArray());
+    }
 }
