@@ -65,7 +65,7 @@ public static class MethodsReport
             int pdm = periods.Count(a => a.Period!.PdmTheta is not null);
             if (pdm > 0)
                 sb.Append(ci, $" and, for {pdm} star{Plural(pdm)}, checked against Stellingwerf phase dispersion minimisation ({Distinct(periods.Select(a => a.Settings.PeriodSearch.PdmBins.ToString(ci)))} phase bins)");
-            sb.Append(ci, $" (period methods: {Distinct(periods.Select(a => a.Period!.Method))}). ");
+            sb.Append(ci, $"; period methods: {Distinct(periods.Select(a => a.Period!.Method))}. ");
             int reviewed = analyses.Count(a => a.Overrides.PeriodDays is not null || a.Overrides.Class is not null);
             if (reviewed > 0) sb.Append(ci, $"For {reviewed} star{Plural(reviewed)} a reviewer chose the period or class. ");
             sb.Append("Intensity-mean magnitudes come from Fourier fits of at most ")

@@ -71,7 +71,7 @@ public static class PlDiagramSvg
             sb.Append(ci, $"<circle cx=\"{F(X(p.LogPUsed))}\" cy=\"{F(Y(p.ApparentMag0))}\" r=\"3\" fill=\"#246\"/></g>\n");
         }
         string caption = muMean is { } m && rel is not null
-            ? string.Create(ci, $"{title}: {pts.Count} star(s), relation {relationId} ({rel.Source}) at [Fe/H] = {Num(rel.FeHDefault)} + weighted mean mu = {m:F3} mag")
+            ? string.Create(ci, $"{title}: {pts.Count} star(s); line: {relationId} ({rel.Source}) at [Fe/H] = {Num(rel.FeHDefault)}, shifted by the weighted mean mu = {m:F3} mag")
             : string.Create(ci, $"{title}: {pts.Count} star(s), relation {relationId}");
         int other = withDistance.Count - pts.Count;
         if (other > 0) caption += string.Create(ci, $"; {other} star(s) with other relations not shown");
