@@ -112,7 +112,7 @@ internal static class ExportWriters
             {
                 w.WriteStartElement("FIELD", ns);
                 w.WriteAttributeString("name", c.Name);
-                w.WriteAttributeString("ID", "col_" + c.Name.Replace('.', '_'));
+                // No ID: band names come from uploads and need not be XML NCNames; readers then key columns by name.
                 if (c.Kind == ExportKind.Number) w.WriteAttributeString("datatype", "double");
                 else { w.WriteAttributeString("datatype", "char"); w.WriteAttributeString("arraysize", "*"); }
                 if (c.Unit.Length > 0) w.WriteAttributeString("unit", c.Unit);

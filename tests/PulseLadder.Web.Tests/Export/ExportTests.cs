@@ -144,6 +144,7 @@ public sealed class ExportTests(ExportFixture fx)
                 else: row[f.name] = str(v)
             out['rows'].append(row)
         out['methods'] = [i.value for i in vot.resources[0].infos if i.name == 'methods']
+        out['colnames'] = list(t.to_table().colnames)
         print(json.dumps(out))
         """;
 
@@ -168,6 +169,9 @@ public sealed class ExportTests(ExportFixture fx)
         var got = JsonDocument.Parse(await stdout).RootElement;
 
         Assert.Equal("1.4", got.GetProperty("version").GetString());
+        // astropy's Table conversion keys columns by FIELD name (no ID attributes are written).
+        Assert.Equal(expected.GetProperty("columns").EnumerateArray().Select(c => c.GetProperty("name").GetString()!).ToArray(),
+            got.GetProperty("colnames").EnumerateArray().Select(c => c.GetString()!).ToArray());
         var fields = got.GetProperty("fields").EnumerateArray().ToDictionary(f => f.GetProperty("name").GetString()!);
         Assert.Equal(expected.GetProperty("columns").EnumerateArray().Select(c => c.GetProperty("name").GetString()).ToArray(), fields.Keys.ToArray());
         // astropy's Unit strings for the VOUnits d, mag, pc and deg.
