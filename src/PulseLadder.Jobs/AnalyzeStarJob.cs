@@ -64,7 +64,7 @@ public sealed class AnalyzeStarJob(Database db, IAnalysisQueue queue, TimeProvid
     }
 
     /// <summary>SHA-256 over everything the result depends on: provenance, and the check used by "reproduce".</summary>
-    internal static string InputHash(StarInfo star, IReadOnlyList<Observation> obs, PipelineSettings settings, ReviewOverrides overrides)
+    public static string InputHash(StarInfo star, IReadOnlyList<Observation> obs, PipelineSettings settings, ReviewOverrides overrides)
     {
         using var h = IncrementalHash.CreateHash(HashAlgorithmName.SHA256);
         h.AppendData(Encoding.UTF8.GetBytes(Json.Serialize(star)));

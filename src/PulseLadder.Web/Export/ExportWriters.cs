@@ -1,0 +1,174 @@
+using System.Globalization;
+using System.Text;
+using System.Text.Json;
+using System.Xml;
+using PulseLadder.Web.Api;
+
+namespace PulseLadder.Web.Export;
+
+/// <summary>What an export file says about itself besides the rows (taken from the stored results).</summary>
+/// <param name="Title">Field name, or "campaign" for the whole database.</param>
+/// <param name="PipelineVersions">Distinct pipeline versions of the exported results.</param>
+/// <param name="RelationIds">Period-luminosity relations used by the exported distances.</param>
+/// <param name="AnchorIds">Zero-point anchors used by the exported distances.</param>
+/// <param name="Methods">The plain-text methods paragraph (MethodsReport).</param>
+internal sealed record ExportMetadata(string Title, string SoftwareVersion, IReadOnlyList<string> PipelineVersions,
+    IReadOnlyList<string> RelationIds, IReadOnlyList<string> AnchorIds, bool AcceptedOnly, string Methods);
+
+/// <summary>CSV, JSON and VOTable 1.4 writers over one column selection; all three carry the same values.</summary>
+internal static class ExportWriters
+{
+    /// <summary>RFC 4180 CSV with a header row; numbers in invariant culture, round-trip ("R") precision; null as empty.</summary>
+    public static string Csv(IReadOnlyList<StarRowDto> rows, IReadOnlyList<ExportColumn> columns)
+    {
+        var sb = new StringBuilder();
+        sb.AppendJoin(',', columns.Select(c => c.Name)).Append('\n');
+        foreach (var r in rows)
+            sb.AppendJoin(',', columns.Select(c => CsvCell(ExportColumns.Format(c.Value(r))))).Append('\n');
+        return sb.ToString();
+    }
+
+    /// <summary>
+    /// <c>{ "title", "software_version", "pipeline_versions", "relation_ids", "anchor_ids", "accepted_only", "methods",
+    /// "columns": [{name, unit, ucd, description}], "rows": [{column: value}] }</c>; numbers as JSON numbers, null as null.
+    /// </summary>
+    public static byte[] Json(IReadOnlyList<StarRowDto> rows, IReadOnlyList<ExportColumn> columns, ExportMetadata meta)
+    {
+        using var ms = new MemoryStream();
+        using (var w = new Utf8JsonWriter(ms, new JsonWriterOptions { Indented = false }))
+        {
+            w.WriteStartObject();
+            w.WriteString("title", meta.Title);
+            w.WriteString("software_version", meta.SoftwareVersion);
+            WriteArray(w, "pipeline_versions", meta.PipelineVersions);
+            WriteArray(w, "relation_ids", meta.RelationIds);
+            WriteArray(w, "anchor_ids", meta.AnchorIds);
+            w.WriteBoolean("accepted_only", meta.AcceptedOnly);
+            w.WriteString("methods", meta.Methods);
+            w.WriteStartArray("columns");
+            foreach (var c in columns)
+            {
+                w.WriteStartObject();
+                w.WriteString("name", c.Name);
+                if (c.Unit.Length > 0) w.WriteString("unit", c.Unit); else w.WriteNull("unit");
+                w.WriteString("ucd", c.Ucd);
+                w.WriteString("description", c.Description);
+                w.WriteEndObject();
+            }
+            w.WriteEndArray();
+            w.WriteStartArray("rows");
+            foreach (var r in rows)
+            {
+                w.WriteStartObject();
+                foreach (var c in columns)
+                {
+                    switch (c.Value(r))
+                    {
+                        case null: w.WriteNull(c.Name); break;
+                        case double d when double.IsFinite(d): w.WriteNumber(c.Name, d); break;
+                        case double: w.WriteNull(c.Name); break;
+                        case var v: w.WriteString(c.Name, ExportColumns.Format(v)); break;
+                    }
+                }
+                w.WriteEndObject();
+            }
+            w.WriteEndArray();
+            w.WriteEndObject();
+        }
+        return ms.ToArray();
+    }
+
+    /// <summary>
+    /// IVOA VOTable 1.4 (namespace v1.3, which 1.4 keeps) with one RESOURCE/TABLE and TABLEDATA. Doubles are
+    /// "double" FIELDs; a missing value is an empty TD (read as NaN/masked by VOTable 1.3+ readers). Text columns
+    /// are char arraysize="*", where a missing value is the empty string. Pipeline version, relation and anchor ids
+    /// are PARAMs; the methods paragraph is the TABLE's DESCRIPTION and an INFO name="methods".
+    /// </summary>
+    public static byte[] VoTable(IReadOnlyList<StarRowDto> rows, IReadOnlyList<ExportColumn> columns, ExportMetadata meta)
+    {
+        using var ms = new MemoryStream();
+        var settings = new XmlWriterSettings { Encoding = new UTF8Encoding(false), Indent = true, NewLineChars = "\n" };
+        const string ns = "http://www.ivoa.net/xml/VOTable/v1.3";
+        using (var w = XmlWriter.Create(ms, settings))
+        {
+            w.WriteStartDocument();
+            w.WriteStartElement("VOTABLE", ns);
+            w.WriteAttributeString("version", "1.4");
+            w.WriteStartElement("RESOURCE", ns);
+            w.WriteAttributeString("name", meta.Title);
+            w.WriteAttributeString("type", "results");
+            Info(w, ns, "software", "PulseLadder " + meta.SoftwareVersion);
+            Info(w, ns, "methods", meta.Methods);
+            w.WriteStartElement("TABLE", ns);
+            w.WriteAttributeString("name", meta.Title + "-distances");
+            w.WriteAttributeString("nrows", rows.Count.ToString(CultureInfo.InvariantCulture));
+            w.WriteElementString("DESCRIPTION", ns, meta.Methods);
+            Param(w, ns, "pipeline_version", "meta.version", string.Join(",", meta.PipelineVersions), "Pipeline version(s) of the exported results");
+            Param(w, ns, "software_version", "meta.version", meta.SoftwareVersion, "Version of the software that wrote this file");
+            Param(w, ns, "relation_ids", "meta.ref", string.Join(",", meta.RelationIds), "Period-luminosity relations used by the distances");
+            Param(w, ns, "anchor_ids", "meta.ref", string.Join(",", meta.AnchorIds), "Zero-point anchors used by the distances");
+            Param(w, ns, "accepted_only", "meta.code", meta.AcceptedOnly ? "true" : "false", "Only stars a reviewer accepted");
+            foreach (var c in columns)
+            {
+                w.WriteStartElement("FIELD", ns);
+                w.WriteAttributeString("name", c.Name);
+                // No ID: band names come from uploads and need not be XML NCNames; readers then key columns by name.
+                if (c.Kind == ExportKind.Number) w.WriteAttributeString("datatype", "double");
+                else { w.WriteAttributeString("datatype", "char"); w.WriteAttributeString("arraysize", "*"); }
+                if (c.Unit.Length > 0) w.WriteAttributeString("unit", c.Unit);
+                w.WriteAttributeString("ucd", c.Ucd);
+                w.WriteElementString("DESCRIPTION", ns, c.Description);
+                w.WriteEndElement();
+            }
+            w.WriteStartElement("DATA", ns);
+            w.WriteStartElement("TABLEDATA", ns);
+            foreach (var r in rows)
+            {
+                w.WriteStartElement("TR", ns);
+                foreach (var c in columns)
+                {
+                    var v = c.Value(r);
+                    w.WriteElementString("TD", ns, v is double d && !double.IsFinite(d) ? "" : ExportColumns.Format(v));
+                }
+                w.WriteEndElement();
+            }
+            w.WriteEndElement();
+            w.WriteEndElement();
+            w.WriteEndElement(); // TABLE
+            w.WriteEndElement(); // RESOURCE
+            w.WriteEndElement(); // VOTABLE
+            w.WriteEndDocument();
+        }
+        return ms.ToArray();
+    }
+
+    private static void Info(XmlWriter w, string ns, string name, string value)
+    {
+        w.WriteStartElement("INFO", ns);
+        w.WriteAttributeString("name", name);
+        w.WriteAttributeString("value", value);
+        w.WriteEndElement();
+    }
+
+    private static void Param(XmlWriter w, string ns, string name, string ucd, string value, string description)
+    {
+        w.WriteStartElement("PARAM", ns);
+        w.WriteAttributeString("name", name);
+        w.WriteAttributeString("datatype", "char");
+        w.WriteAttributeString("arraysize", "*");
+        w.WriteAttributeString("ucd", ucd);
+        w.WriteAttributeString("value", value);
+        w.WriteElementString("DESCRIPTION", ns, description);
+        w.WriteEndElement();
+    }
+
+    private static void WriteArray(Utf8JsonWriter w, string name, IReadOnlyList<string> values)
+    {
+        w.WriteStartArray(name);
+        foreach (var v in values) w.WriteStringValue(v);
+        w.WriteEndArray();
+    }
+
+    private static string CsvCell(string s) =>
+        s.AsSpan().IndexOfAny(",\"\n\r") >= 0 ? "\"" + s.Replace("\"", "\"\"") + "\"" : s;
+}
