@@ -19,6 +19,7 @@ public sealed class AnalyzeStarJob(Database db, IAnalysisQueue queue, TimeProvid
     public void Run(long starId, long revision)
     {
         StarRow? star;
+        FieldRow? field;
         IReadOnlyList<Observation> observations;
         using (var c = db.Open())
         {
@@ -27,9 +28,10 @@ public sealed class AnalyzeStarJob(Database db, IAnalysisQueue queue, TimeProvid
             // A newer revision has its own job; this one is obsolete.
             if (star.Revision != revision) return;
             observations = ObservationStore.ForStar(c, starId);
+            field = FieldStore.Get(c, star.FieldId);
         }
 
-        var settings = SettingsFor(star);
+        var settings = SettingsFor(field);
         var overrides = new ReviewOverrides(
             star.ChosenPeriodDays,
             star.ChosenClass is { } cc && PulsatorClasses.TryParse(cc, out var cls) ? cls : null);
@@ -46,7 +48,20 @@ public sealed class AnalyzeStarJob(Database db, IAnalysisQueue queue, TimeProvid
         if (star.ReviewState == ReviewStates.Accepted) queue.EnqueueFieldSummary(star.FieldId);
     }
 
-    internal static PipelineSettings SettingsFor(StarRow star) => PipelineSettings.Default;
+    /// <summary>The defaults, with the field's chosen relation (for the classes it serves) and default E(B-V).</summary>
+    public static PipelineSettings SettingsFor(FieldRow? field)
+    {
+        var s = PipelineSettings.Default;
+        if (field is null) return s;
+        var d = s.Distance with { DefaultEbv = field.DefaultEbv };
+        if (field.CalibrationId is { } id && Core.Calibration.CalibrationRegistry.Embedded.TryGet(id, out var rel))
+        {
+            if (rel.Classes.Any(c => c is PulsatorClass.ClassicalCepheidFundamental or PulsatorClass.ClassicalCepheidFirstOvertone)) d = d with { CepheidRelationId = id };
+            if (rel.Classes.Contains(PulsatorClass.TypeIICepheid)) d = d with { TypeIICepheidRelationId = id };
+            if (rel.Classes.Any(c => c.IsRRLyrae())) d = d with { RRLyraeRelationId = id };
+        }
+        return s with { Distance = d };
+    }
 
     internal static AnalysisRow ToRow(long starId, long revision, StarAnalysis r, string inputHash, string now)
     {

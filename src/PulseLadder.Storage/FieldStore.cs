@@ -20,6 +20,11 @@ public static class FieldStore
     public static FieldRow? Get(DbConnection c, long id, DbTransaction? tx = null) =>
         c.QuerySingleOrDefault<FieldRow>("SELECT id, name, calibration_id, default_ebv, created_at FROM fields WHERE id = @id", new { id }, tx);
 
+    /// <summary>Sets the field's calibration relation and default E(B-V); the caller re-queues its stars.</summary>
+    public static void SetSettings(DbConnection c, DbTransaction tx, long id, string? calibrationId, double? defaultEbv) =>
+        c.Execute("UPDATE fields SET calibration_id = @calibrationId, default_ebv = @defaultEbv WHERE id = @id",
+            new { id, calibrationId, defaultEbv }, tx);
+
     /// <summary>Per-field counts by review state and analysis status (current pipeline version).</summary>
     public static IReadOnlyList<FieldCounts> Counts(DbConnection c, string pipelineVersion) =>
         c.Query<FieldCounts>("""

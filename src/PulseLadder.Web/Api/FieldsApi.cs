@@ -21,6 +21,8 @@ public static class FieldsApi
         api.MapGet("/fields/{fieldId:long}/stars", Stars).WithName("ListFieldStars");
         api.MapGet("/fields/{fieldId:long}/summary", Summary).WithName("GetFieldSummary");
         api.MapGet("/progress", Progress).WithName("GetProgress");
+        api.MapPut("/fields/{fieldId:long}/settings", SetSettings).WithName("SetFieldSettings");
+        api.MapGet("/calibrations", Calibrations).WithName("ListCalibrations");
     }
 
     public static Ok<List<FieldDto>> List(Database db)
@@ -73,9 +75,46 @@ public static class FieldsApi
         return TypedResults.Ok(new ProgressDto(total, total - pending, pending));
     }
 
+    public static Results<Ok<FieldDto>, ProblemHttpResult, ValidationProblem> SetSettings(
+        Database db, PulseLadder.Jobs.IAnalysisQueue queue, TimeProvider clock, long fieldId, FieldSettingsRequest body)
+    {
+        var errors = new Dictionary<string, string[]>();
+        if (body.CalibrationId is { } id && !Core.Calibration.CalibrationRegistry.Embedded.TryGet(id, out _))
+            errors["calibration_id"] = [$"unknown relation '{id}'; GET /api/v1/calibrations lists them"];
+        if (body.DefaultEbv is { } e && (!double.IsFinite(e) || e < 0 || e > 10)) errors["default_ebv"] = ["must be between 0 and 10 mag"];
+        if (errors.Count > 0) return TypedResults.ValidationProblem(errors);
+        string now = clock.GetUtcNow().ToString("O");
+        using var c = db.Open();
+        using (var tx = c.BeginTransaction())
+        {
+            var f = FieldStore.Get(c, fieldId, tx);
+            if (f is null) return NotFound($"No field with id {fieldId}.");
+            FieldStore.SetSettings(c, tx, fieldId, body.CalibrationId, body.DefaultEbv);
+            // New settings make every result of the field stale: each star gets a new revision.
+            StarStore.BumpRevision(c, tx, StarStore.ListByField(c, fieldId, tx).Select(s => s.Id));
+            AuditStore.Append(c, tx, now, body.By ?? "admin", "field:settings", $"field {f.Name}",
+                $"calibration {f.CalibrationId ?? "-"} -> {body.CalibrationId ?? "-"}; default_ebv {f.DefaultEbv?.ToString("R", System.Globalization.CultureInfo.InvariantCulture) ?? "-"} -> {body.DefaultEbv?.ToString("R", System.Globalization.CultureInfo.InvariantCulture) ?? "-"}");
+            tx.Commit();
+        }
+        foreach (var (starId, revision) in StarStore.Pending(c, PipelineVersion.Current)) queue.EnqueueStar(starId, revision);
+        queue.EnqueueFieldSummary(fieldId);
+        return TypedResults.Ok(List(db).Value!.Single(x => x.FieldId == fieldId));
+    }
+
+    public static Ok<List<CalibrationDto>> Calibrations() =>
+        TypedResults.Ok(Core.Calibration.CalibrationRegistry.Embedded.Relations.Select(r => new CalibrationDto(
+            r.Id, r.Classes.Select(PulsatorClassesCode).ToList(), r.BandLabel, r.Source, r.Table, r.Tag, r.Notes,
+            Math.Pow(10, r.LogPMin), Math.Pow(10, r.LogPMax))).ToList());
+
+    private static string PulsatorClassesCode(Core.Photometry.PulsatorClass c) => Core.Photometry.PulsatorClasses.ToCode(c);
+
     internal static ProblemHttpResult NotFound(string detail) =>
         TypedResults.Problem(title: "Not found", detail: detail, statusCode: 404);
 }
+
+public sealed record FieldSettingsRequest(string? CalibrationId, double? DefaultEbv, string? By);
+
+public sealed record CalibrationDto(string Id, IReadOnlyList<string> Classes, string Band, string Source, string Table, string Tag, string Notes, double PeriodMinDays, double PeriodMaxDays);
 
 public sealed record FieldSummaryView(long FieldId, string Field, long NUsed, double? Mu, double? MuErr, string ComputedAt, System.Text.Json.JsonElement Detail);
 
