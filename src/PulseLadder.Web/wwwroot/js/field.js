@@ -77,6 +77,8 @@ function updateExportLinks() {
   const acc = $('#export-accepted').checked;
   $('#export-csv').href = api.exportUrl(fieldId, 'csv', acc);
   $('#export-json').href = api.exportUrl(fieldId, 'json', acc);
+  $('#export-votable').href = api.exportUrl(fieldId, 'votable', acc);
+  $('#methods-text').href = `/api/v1/fields/${encodeURIComponent(fieldId)}/methods?accepted_only=${acc ? 'true' : 'false'}`;
 }
 
 // ---------- Table ----------
