@@ -50,6 +50,14 @@ public static class PulseLadderWeb
         database.Migrate(app.Services.GetRequiredService<TimeProvider>());
 
         app.UseExceptionHandler();
+        app.Use(async (ctx, next) =>
+        {
+            var h = ctx.Response.Headers;
+            h.XContentTypeOptions = "nosniff";
+            h.XFrameOptions = "DENY";
+            h["Referrer-Policy"] = "no-referrer";
+            await next();
+        });
         app.UseStatusCodePages();
         app.UseDefaultFiles();
         app.UseStaticFiles();

@@ -163,6 +163,8 @@ public sealed class ApiTests
         using var client = factory.CreateClient();
         var resp = await client.GetAsync("/health");
         Assert.Equal(HttpStatusCode.OK, resp.StatusCode);
+        Assert.Equal("nosniff", resp.Headers.GetValues("X-Content-Type-Options").Single());
+        Assert.Equal("DENY", resp.Headers.GetValues("X-Frame-Options").Single());
         Assert.True(File.Exists(Path.Combine(dir, "pulseladder.db")));
         var problem = await client.GetAsync("/api/v1/stars/999");
         Assert.Equal(HttpStatusCode.NotFound, problem.StatusCode);
