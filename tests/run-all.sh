@@ -42,7 +42,7 @@ echo "== build"
 dotnet build PulseLadder.sln -c Release -nologo -v q -clp:ErrorsOnly
 
 failed=0
-for p in Kernels Core Storage Web Browser; do
+for p in Kernels Core Storage Web Browser ScaleOut; do
   proj="tests/PulseLadder.$p.Tests"
   [ -d "$proj" ] || continue
   echo "== tests: $proj"
