@@ -15,7 +15,9 @@ namespace PulseLadder.Jobs;
 public sealed class AnalyzeStarJob(Database db, IAnalysisQueue queue, TimeProvider clock, ILogger<AnalyzeStarJob> log)
 {
     [Queue("analysis")]
-    [AutomaticRetry(Attempts = 3)]
+    // Failures here are mostly the database going away (restart, failover): retry soon and long enough to ride out an
+    // outage of about an hour, since a job that ends Failed leaves its star pending until the web host restarts.
+    [AutomaticRetry(Attempts = 10, DelaysInSeconds = [5, 10, 20, 40, 60, 120, 300, 600, 900, 1800])]
     public void Run(long starId, long revision)
     {
         StarRow? star;
