@@ -50,7 +50,7 @@ public static class ObservationStore
         importer.Complete();
     }
 
-    private static void InsertPrepared(DbConnection c, DbTransaction tx, long uploadId, IEnumerable<ObservationToStore> rows)
+    internal static void InsertPrepared(DbConnection c, DbTransaction tx, long uploadId, IEnumerable<ObservationToStore> rows)
     {
         using var cmd = c.CreateCommand();
         cmd.Transaction = tx;

@@ -20,7 +20,7 @@ public sealed class ScaledModeTests(ITestOutputHelper output)
     /// budget, so the default is smaller; PULSELADDER_SCALEOUT_STARS runs the full size by hand.
     /// </summary>
     private static int StarCount =>
-        int.TryParse(Environment.GetEnvironmentVariable("PULSELADDER_SCALEOUT_STARS"), NumberStyles.Integer, CultureInfo.InvariantCulture, out int n) ? n : 120;
+        int.TryParse(Environment.GetEnvironmentVariable("PULSELADDER_SCALEOUT_STARS"), NumberStyles.Integer, CultureInfo.InvariantCulture, out int n) ? n : 80;
 
     [Fact]
     public async Task Workers_StoreExactlyOneCurrentResultPerStar_WhenAWorkerIsKilledAndPostgresRestarts()
