@@ -28,6 +28,9 @@ public sealed class AnalyzeStarJob(Database db, IAnalysisQueue queue, TimeProvid
             if (star is null) { log.LogWarning("Star {StarId} no longer exists; nothing to do", starId); return; }
             // A newer revision has its own job; this one is obsolete.
             if (star.Revision != revision) return;
+            // Already done by an earlier delivery of the same work (a web host restart re-enqueues every pending star
+            // while the shared queue may still hold its job): the result would be identical, so skip the analysis.
+            if (AnalysisStore.Exists(c, starId, revision, PipelineVersion.Current)) return;
             observations = ObservationStore.ForStar(c, starId);
         }
 
