@@ -15,7 +15,9 @@ namespace PulseLadder.Jobs;
 public sealed class AnalyzeStarJob(Database db, IAnalysisQueue queue, TimeProvider clock, ILogger<AnalyzeStarJob> log)
 {
     [Queue("analysis")]
-    [AutomaticRetry(Attempts = 3)]
+    // Failures here are mostly the database going away (restart, failover): retry soon and long enough to ride out an
+    // outage of about an hour, since a job that ends Failed leaves its star pending until the web host restarts.
+    [AutomaticRetry(Attempts = 10, DelaysInSeconds = [5, 10, 20, 40, 60, 120, 300, 600, 900, 1800])]
     public void Run(long starId, long revision)
     {
         StarRow? star;
@@ -27,6 +29,9 @@ public sealed class AnalyzeStarJob(Database db, IAnalysisQueue queue, TimeProvid
             if (star is null) { log.LogWarning("Star {StarId} no longer exists; nothing to do", starId); return; }
             // A newer revision has its own job; this one is obsolete.
             if (star.Revision != revision) return;
+            // Already done by an earlier delivery of the same work (a web host restart re-enqueues every pending star
+            // while the shared queue may still hold its job): the result would be identical, so skip the analysis.
+            if (AnalysisStore.Exists(c, starId, revision, PipelineVersion.Current)) return;
             observations = ObservationStore.ForStar(c, starId);
             field = FieldStore.Get(c, star.FieldId);
         }

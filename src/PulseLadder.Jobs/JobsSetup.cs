@@ -32,8 +32,11 @@ public static class JobsSetup
             {
                 SchemaName = "hangfire",
                 PrepareSchemaIfNecessary = true,
-                // A job whose worker died is handed to another worker after this long.
-                InvisibilityTimeout = TimeSpan.FromMinutes(5),
+                // A job whose worker died is handed to another worker after this long. Live workers keep extending
+                // it (sliding), so a long analysis is not handed out twice, and a killed worker's job returns quickly
+                // instead of after a fixed 5 minutes.
+                InvisibilityTimeout = TimeSpan.FromSeconds(30),
+                UseSlidingInvisibilityTimeout = true,
                 QueuePollInterval = TimeSpan.FromMilliseconds(200),
             });
         });

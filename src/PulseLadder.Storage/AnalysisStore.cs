@@ -50,6 +50,11 @@ public static class AnalysisStore
             WHERE a.pipeline_version = @pipelineVersion
             """, new { pipelineVersion });
 
+    /// <summary>Whether the result for exactly (star, revision, pipeline version) is stored.</summary>
+    public static bool Exists(DbConnection c, long starId, long revision, string pipelineVersion) =>
+        c.ExecuteScalar<long>("SELECT COUNT(*) FROM analyses WHERE star_id = @starId AND revision = @revision AND pipeline_version = @pipelineVersion",
+            new { starId, revision, pipelineVersion }) > 0;
+
     public static long CountRowsForStar(DbConnection c, long starId) =>
         c.ExecuteScalar<long>("SELECT COUNT(*) FROM analyses WHERE star_id = @starId", new { starId });
 }

@@ -1,0 +1,64 @@
+using Microsoft.Extensions.Logging.Abstractions;
+using PulseLadder.Cli;
+using PulseLadder.Core.Pipeline;
+using PulseLadder.Demo;
+using PulseLadder.Jobs;
+using PulseLadder.Storage;
+
+namespace PulseLadder.ScaleOut.Tests;
+
+/// <summary>At-least-once delivery: the same (star, revision) job arriving again must neither add a row nor redo the work.</summary>
+public sealed class AnalyzeStarJobTests
+{
+    private sealed class SteppingClock : TimeProvider
+    {
+        private DateTimeOffset _now = new(2026, 1, 1, 0, 0, 0, TimeSpan.Zero);
+
+        public override DateTimeOffset GetUtcNow() => _now = _now.AddMinutes(1);
+    }
+
+    private sealed class NoQueue : IAnalysisQueue
+    {
+        public void EnqueueStar(long starId, long revision) { }
+
+        public void EnqueueFieldSummary(long fieldId) { }
+    }
+
+    [Fact]
+    public void Run_KeepsTheStoredResult_WhenTheSameJobIsDeliveredAgain()
+    {
+        var clock = new SteppingClock();
+        var db = Database.Sqlite(Path.Combine(Path.GetTempPath(), "plx-scaleout-job-" + Guid.NewGuid().ToString("N") + ".db"));
+        db.Migrate(clock);
+        string dir = Path.Combine(Path.GetTempPath(), "plx-scaleout-demo-" + Guid.NewGuid().ToString("N"));
+        DemoCampaign.WriteTo(dir, new DemoOptions { StarCount = 30 });
+        try
+        {
+            DemoLoader.LoadFolder(db, clock, dir);
+        }
+        finally
+        {
+            Directory.Delete(dir, recursive: true);
+        }
+        (long starId, long revision) = PendingFirst(db);
+        var job = new AnalyzeStarJob(db, new NoQueue(), clock, NullLogger<AnalyzeStarJob>.Instance);
+
+        job.Run(starId, revision);
+        AnalysisRow first;
+        using (var c = db.Open()) first = AnalysisStore.Latest(c, starId, PipelineVersion.Current)!;
+        job.Run(starId, revision);
+
+        using var conn = db.Open();
+        var again = AnalysisStore.Latest(conn, starId, PipelineVersion.Current)!;
+        Assert.Equal(1, AnalysisStore.CountRowsForStar(conn, starId));
+        Assert.Equal(revision, again.Revision);
+        // The clock steps on every read: an unchanged timestamp shows the second delivery stored nothing.
+        Assert.Equal(first.CreatedAt, again.CreatedAt);
+    }
+
+    private static (long, long) PendingFirst(Database db)
+    {
+        using var c = db.Open();
+        return StarStore.Pending(c, PipelineVersion.Current)[0];
+    }
+}
