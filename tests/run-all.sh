@@ -44,12 +44,8 @@ echo "== build"
 dotnet build PulseLadder.sln -c Release -nologo -v q -clp:ErrorsOnly
 
 failed=0
-<<<<<<< HEAD
 summary=$(mktemp)
-for p in Kernels Core Storage Web Browser; do
-=======
 for p in Kernels Core Storage Web Browser ScaleOut; do
->>>>>>> scaleout
   proj="tests/PulseLadder.$p.Tests"
   [ -d "$proj" ] || continue
   echo "== tests: $proj"
