@@ -107,15 +107,7 @@ public sealed class GlsNufftPlan
         if (t.Length != y.Length || t.Length != w.Length) KernelThrow.LengthMismatch();
         if (power.Length != Count) throw new ArgumentException($"power has {power.Length} elements, the plan's grid {Count}.");
         int n = t.Length;
-        double wsum = 0;
-        for (int i = 0; i < n; i++) wsum += w[i];
-        if (n < 3 || !(wsum > 0)) { power.Clear(); return; }
-        double ybar = 0, yy = 0;
-        for (int i = 0; i < n; i++) ybar += w[i] * y[i];
-        ybar /= wsum;
-        for (int i = 0; i < n; i++) { double d = y[i] - ybar; yy += w[i] * d * d; }
-        yy /= wsum;
-        if (!(yy > 0)) { power.Clear(); return; }
+        if (!GlsMoments.TryCompute(y, w, out double wsum, out double ybar, out double yy)) { power.Clear(); return; }
 
         if (_x.Length < n) { _x = new double[n]; _qr = new double[n]; _qi = new double[n]; }
         double twoPi = 2.0 * Math.PI;

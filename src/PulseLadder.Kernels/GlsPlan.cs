@@ -138,17 +138,9 @@ public sealed unsafe class GlsPlan
     [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     private bool Prepare(ReadOnlySpan<double> t, ReadOnlySpan<double> y, ReadOnlySpan<double> w)
     {
-        // Same order of operations as GlsReference, so the normalisation constants are bit-identical.
+        // The same moments as GlsReference, so the normalisation constants are bit-identical.
         int n = t.Length;
-        double wsum = 0;
-        for (int i = 0; i < n; i++) wsum += w[i];
-        if (n < 3 || !(wsum > 0)) return false;
-        double ybar = 0, yy = 0;
-        for (int i = 0; i < n; i++) ybar += w[i] * y[i];
-        ybar /= wsum;
-        for (int i = 0; i < n; i++) { double d = y[i] - ybar; yy += w[i] * d * d; }
-        yy /= wsum;
-        if (!(yy > 0)) return false;
+        if (!GlsMoments.TryCompute(y, w, out double wsum, out double ybar, out double yy)) return false;
 
         _n = n;
         _np = (n + Pad - 1) / Pad * Pad;

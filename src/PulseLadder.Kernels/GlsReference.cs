@@ -20,16 +20,7 @@ public static class GlsReference
     {
         if (t.Length != y.Length || t.Length != w.Length) KernelThrow.LengthMismatch();
         int n = t.Length;
-        double wsum = 0;
-        for (int i = 0; i < n; i++) wsum += w[i];
-        if (n < 3 || !(wsum > 0)) { power.Clear(); return; }
-
-        double ybar = 0, yy = 0;
-        for (int i = 0; i < n; i++) ybar += w[i] * y[i];
-        ybar /= wsum;
-        for (int i = 0; i < n; i++) { double d = y[i] - ybar; yy += w[i] * d * d; }
-        yy /= wsum;
-        if (!(yy > 0)) { power.Clear(); return; }
+        if (!GlsMoments.TryCompute(y, w, out double wsum, out double ybar, out double yy)) { power.Clear(); return; }
 
         for (int k = 0; k < power.Length; k++)
         {
