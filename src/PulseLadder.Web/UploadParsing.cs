@@ -37,8 +37,7 @@ public static class UploadParsing
         {
             var t = line.Trim();
             if (t.Length == 0 || t[0] == '#') continue;
-            char sep = t.Contains('\t') ? '\t' : t.Contains(';') ? ';' : ',';
-            return t.Split(sep).Select(c => c.Trim().Trim('"')).ToList();
+            return CsvHeader.Columns(t);
         }
         return [];
     }
