@@ -3,6 +3,7 @@ using System.Globalization;
 using System.Text.Json;
 using PulseLadder.Core.Ingest;
 using PulseLadder.Core.Pipeline;
+using PulseLadder.Core.Reporting;
 using Spectre.Console;
 using Spectre.Console.Cli;
 
@@ -91,8 +92,8 @@ public sealed class AnalyzeCommand : Command<AnalyzeCommand.Settings>
         foreach (var b in bands) sb.Append(",mean_mag_").Append(b);
         foreach (var b in bands) sb.Append(",amplitude_").Append(b);
         sb.Append(",ebv,distance_modulus,distance_modulus_err,distance_pc,distance_pc_err,flags\n");
-        static string N(double? v) => v is { } x ? x.ToString("R", CultureInfo.InvariantCulture) : "";
-        static string Q(string t) => t.AsSpan().IndexOfAny(",\"\n") >= 0 ? "\"" + t.Replace("\"", "\"\"") + "\"" : t;
+        static string N(double? v) => CsvText.Number(v);
+        static string Q(string t) => CsvText.Cell(t);
         foreach (var r in rows)
         {
             sb.Append(Q(r.Star)).Append(',').Append(Q(r.Field)).Append(',').Append(r.Class).Append(',')

@@ -169,6 +169,5 @@ internal static class ExportWriters
         w.WriteEndArray();
     }
 
-    private static string CsvCell(string s) =>
-        s.AsSpan().IndexOfAny(",\"\n\r") >= 0 ? "\"" + s.Replace("\"", "\"\"") + "\"" : s;
+    private static string CsvCell(string s) => PulseLadder.Core.Reporting.CsvText.Cell(s);
 }
