@@ -4,6 +4,7 @@ using Microsoft.Extensions.Options;
 using PulseLadder.Jobs;
 using PulseLadder.Storage;
 using PulseLadder.Web.Api;
+using PulseLadder.Web.Auth;
 
 namespace PulseLadder.Web;
 
@@ -43,6 +44,14 @@ public static class PulseLadderWeb
         });
         builder.Services.Configure<FormOptions>(o => o.MultipartBodyLengthLimit = options.MaxUploadBytes);
         builder.WebHost.ConfigureKestrel(k => k.Limits.MaxRequestBodySize = options.MaxUploadBytes);
+        builder.AddPulseLadderAuth(options);
+        builder.Services.Configure<ExceptionHandlerOptions>(o => o.StatusCodeSelector = ex => ex switch
+        {
+            // Kestrel's body limit (a body without Content-Length that grows too long) and the multipart limit.
+            BadHttpRequestException b => b.StatusCode,
+            InvalidDataException d when d.Message.Contains("length limit", StringComparison.OrdinalIgnoreCase) => 413,
+            _ => 500,
+        });
 
         var app = builder.Build();
 
@@ -59,12 +68,25 @@ public static class PulseLadderWeb
             await next();
         });
         app.UseStatusCodePages();
+        app.Use((ctx, next) => AuthSetup.BodySizeGuardAsync(ctx, next, options.MaxUploadBytes));
         app.UseDefaultFiles();
+        // The sign-in page and its files are the only static files served without an account.
+        app.UseWhen(ctx => AuthSetup.IsPublicFile(ctx.Request.Path), b => b.UseStaticFiles());
+        app.UseRouting();
+        app.UseAuthentication();
+        app.UseRateLimiter();
+        app.UseRequestTimeouts();
+        app.Use(AuthSetup.CsrfGuardAsync);
+        app.UseAuthorization();
+        // After UseAuthorization: the fallback policy (signed in) covers every other page and file.
         app.UseStaticFiles();
-        app.MapOpenApi("/openapi/{documentName}.json");
-        app.MapGet("/health", () => TypedResults.Ok(new { status = "ok" })).ExcludeFromDescription();
-        app.MapHangfireDashboard("/jobs");
+        app.MapOpenApi("/openapi/{documentName}.json").RequireAuthorization(Policies.Observer);
+        app.MapGet("/health", () => TypedResults.Ok(new { status = "ok" })).AllowAnonymous().ExcludeFromDescription();
+        app.MapHangfireDashboard("/jobs", new DashboardOptions { Authorization = [new AdminDashboardFilter()] })
+            .RequireAuthorization(Policies.Admin);
         var api = app.MapGroup("/api/v1");
+        AccountApi.Map(api);
+        AdminApi.Map(api);
         UploadsApi.Map(api);
         FieldsApi.Map(api);
         StarsApi.Map(api);
