@@ -5,6 +5,7 @@ import { el, replace, num, pm, sig, kpc, announce, sleep } from './dom.js';
 import { scatter, periodogram, setMarker, bandColour, shade } from './plots.js';
 import { phaseOf, sampleFit, fourier, fitFourier, rms } from './fold.js';
 import { budgetTable } from './budget.js';
+import { whoAmI } from './shell.js';
 
 /** Plain-language explanations of the cleaning and clipping reasons the pipeline records. */
 const REASONS = {
@@ -26,9 +27,6 @@ const ACTION_LABELS = {
 
 const PREVIEW_ORDER = 4;
 
-function reviewer() {
-  return localStorage.getItem('pulseladder.reviewer') || 'reviewer';
-}
 
 /**
  * Renders star `starId` into `root`. Returns a controller: { ready (promise), accept(), reject(), usePeriod(),
@@ -161,8 +159,9 @@ class StarView {
   actionsBar() {
     const d = this.detail;
     const current = d.class?.class ?? d.star.class ?? 'unknown';
-    const nameInput = el('input', { id: 'reviewer-name', type: 'text', value: reviewer(), style: 'width:7rem', autocomplete: 'name',
-      on: { change: (e) => localStorage.setItem('pulseladder.reviewer', e.target.value.trim() || 'reviewer') } });
+    // Decisions are recorded under the signed-in account (the server ignores any name the page might send).
+    const deciding = el('span', { id: 'deciding-as', class: 'muted', text: '' });
+    whoAmI.then((me) => { deciding.textContent = `Deciding as ${me.name}`; }, () => {});
     return el('div', { class: 'actions', style: 'margin-top:.45rem' },
       el('button', { type: 'button', class: 'good', id: 'btn-accept', on: { click: () => this.accept() } }, 'Accept ', el('kbd', { text: 'A' })),
       el('button', { type: 'button', class: 'bad', id: 'btn-reject', on: { click: () => this.reject() } }, 'Reject ', el('kbd', { text: 'R' })),
@@ -177,8 +176,7 @@ class StarView {
         el('input', { id: 'note-input', type: 'text', style: 'width:12rem', placeholder: 'why, what to check…',
           on: { keydown: (e) => { if (e.key === 'Enter') this.addNote(); } } }),
         el('button', { type: 'button', id: 'btn-note', on: { click: () => this.addNote() } }, 'Add note')),
-      el('span', { style: 'display:inline-flex;gap:.35rem;align-items:center;margin-left:auto' },
-        el('label', { for: 'reviewer-name', class: 'toggle', text: 'Your name' }), nameInput));
+      el('span', { style: 'display:inline-flex;gap:.35rem;align-items:center;margin-left:auto' }, deciding));
   }
 
   peaksTable() {
@@ -432,7 +430,7 @@ class StarView {
     if (this.busy) return null;
     this.busy = true;
     try {
-      const res = await api.decide(this.starId, { ...body, by: reviewer() });
+      const res = await api.decide(this.starId, body);
       announce(doneText, 'ok');
       return res;
     } catch (e) {
