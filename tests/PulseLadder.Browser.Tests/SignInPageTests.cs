@@ -62,6 +62,19 @@ public sealed class SignInPageTests(ServerFixture server) : IClassFixture<Server
         Assert.Equal(System.Net.HttpStatusCode.Unauthorized, (await http.GetAsync("/api/v1/me")).StatusCode);
         Assert.Empty(problems);
     }
+
+    [Fact]
+    public async Task JobDashboard_OpensForTheAdmin_AndItsAntiforgeryProtectedPollingSucceeds()
+    {
+        var (page, problems) = await server.NewPageAsync();
+        // Hangfire's dashboard polls POST /jobs/stats with the antiforgery header it reads from its own page.
+        var stats = page.WaitForResponseAsync(r => r.Url.Contains("/jobs/stats", StringComparison.Ordinal) && r.Request.Method == "POST");
+        var resp = await page.GotoAsync("/jobs");
+        Assert.Equal(200, resp!.Status);
+        Assert.Equal(200, (await stats).Status);
+        await ServerFixture.ShotAsync(page, "jobs-dashboard-admin");
+        Assert.Empty(problems);
+    }
 }
 
 /// <summary>A server in single-user mode (`serve --single-user`): no accounts, every request is the local admin.</summary>
