@@ -7,6 +7,7 @@ using Microsoft.AspNetCore.Antiforgery;
 using Microsoft.AspNetCore.Authentication;
 using Microsoft.AspNetCore.Authentication.Cookies;
 using Microsoft.AspNetCore.Authorization;
+using Microsoft.AspNetCore.DataProtection;
 using Microsoft.AspNetCore.Http.Timeouts;
 using Microsoft.AspNetCore.RateLimiting;
 using PulseLadder.Storage;
@@ -38,6 +39,11 @@ internal static class AuthSetup
                 "Listen on http://127.0.0.1:PORT, or create accounts with `pulseladder user add NAME --role admin` and drop single-user mode.");
 
         var services = builder.Services;
+        // Session and antiforgery cookies are encrypted with these keys: kept with the data, so a restart (or a new
+        // container over the same data folder) does not sign everybody out.
+        services.AddDataProtection()
+            .SetApplicationName("PulseLadder")
+            .PersistKeysToFileSystem(new DirectoryInfo(Path.Combine(Path.GetFullPath(options.DataDir), "keys")));
         var auth = services.AddAuthentication(o =>
         {
             o.DefaultScheme = options.Auth.SingleUser ? SingleUserHandler.SchemeName : SelectorScheme;

@@ -161,8 +161,14 @@ class StarView {
     const current = d.class?.class ?? d.star.class ?? 'unknown';
     // Decisions are recorded under the signed-in account (the server ignores any name the page might send).
     const deciding = el('span', { id: 'deciding-as', class: 'muted', text: '' });
-    whoAmI.then((me) => { deciding.textContent = `Deciding as ${me.name}`; }, () => {});
-    return el('div', { class: 'actions', style: 'margin-top:.45rem' },
+    whoAmI.then((me) => {
+      if (me.role === 'observer') {
+        // Decisions need the reviewer role: the buttons would only meet 403.
+        deciding.textContent = `Signed in as observer ${me.name}: decisions need a reviewer`;
+        for (const b of bar.querySelectorAll('button')) b.disabled = true;
+      } else deciding.textContent = `Deciding as ${me.name}`;
+    }, () => {});
+    const bar = el('div', { class: 'actions', style: 'margin-top:.45rem' },
       el('button', { type: 'button', class: 'good', id: 'btn-accept', on: { click: () => this.accept() } }, 'Accept ', el('kbd', { text: 'A' })),
       el('button', { type: 'button', class: 'bad', id: 'btn-reject', on: { click: () => this.reject() } }, 'Reject ', el('kbd', { text: 'R' })),
       el('button', { type: 'button', class: 'primary', id: 'btn-use-period', on: { click: () => this.usePeriod() } }, 'Use folded period ', el('kbd', { text: 'P' })),
@@ -177,6 +183,7 @@ class StarView {
           on: { keydown: (e) => { if (e.key === 'Enter') this.addNote(); } } }),
         el('button', { type: 'button', id: 'btn-note', on: { click: () => this.addNote() } }, 'Add note')),
       el('span', { style: 'display:inline-flex;gap:.35rem;align-items:center;margin-left:auto' }, deciding));
+    return bar;
   }
 
   peaksTable() {
