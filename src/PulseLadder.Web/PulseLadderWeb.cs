@@ -45,12 +45,22 @@ public static class PulseLadderWeb
         builder.Services.Configure<FormOptions>(o => o.MultipartBodyLengthLimit = options.MaxUploadBytes);
         builder.WebHost.ConfigureKestrel(k => k.Limits.MaxRequestBodySize = options.MaxUploadBytes);
         builder.AddPulseLadderAuth(options);
-        builder.Services.Configure<ExceptionHandlerOptions>(o => o.StatusCodeSelector = ex => ex switch
+        builder.Services.Configure<ExceptionHandlerOptions>(o =>
         {
-            // Kestrel's body limit (a body without Content-Length that grows too long) and the multipart limit.
-            BadHttpRequestException b => b.StatusCode,
-            InvalidDataException d when d.Message.Contains("length limit", StringComparison.OrdinalIgnoreCase) => 413,
-            _ => 500,
+            o.StatusCodeSelector = ex => ex switch
+            {
+                // Kestrel's body limit (a body without Content-Length that grows too long) and the multipart limit.
+                BadHttpRequestException b => b.StatusCode,
+                InvalidDataException d when IsLengthLimit(d) => 413,
+                _ => 500,
+            };
+            // A client's oversized or malformed request is its error, not the server's: no error log for it.
+            o.SuppressDiagnosticsCallback = ctx => ctx.Exception is BadHttpRequestException || (ctx.Exception is InvalidDataException d && IsLengthLimit(d));
+        });
+        builder.Services.Configure<ProblemDetailsOptions>(o => o.CustomizeProblemDetails = ctx =>
+        {
+            if (ctx.ProblemDetails.Status == 413 && ctx.ProblemDetails.Detail is null)
+                ctx.ProblemDetails.Detail = $"The request body is over the limit of {options.MaxUploadBytes} bytes (setting 'PulseLadder:MaxUploadBytes').";
         });
 
         var app = builder.Build();
@@ -94,4 +104,6 @@ public static class PulseLadderWeb
         ExportApi.Map(api);
         return app;
     }
+
+    private static bool IsLengthLimit(InvalidDataException e) => e.Message.Contains("length limit", StringComparison.OrdinalIgnoreCase);
 }

@@ -66,6 +66,23 @@ public sealed class AccountTests
     }
 
     [Fact]
+    public async Task SignIn_RefusesFormPosts_SoNoCrossSiteFormCanSignSomebodyIn()
+    {
+        await using var t = await TestApp.StartAsync(runJobs: false);
+        AddUser(t, "fay", Roles.Observer);
+        // What a hostile page's <form method=post> can send without a CORS preflight.
+        var form = new FormUrlEncodedContent(new Dictionary<string, string> { ["name"] = "fay", ["password"] = Password });
+        var client = t.CookieClient();
+        var resp = await client.PostAsync("/api/v1/session", form);
+        // Routing finds no endpoint accepting a form here (only JSON): the request falls to the signed-in fallback
+        // policy (401) instead of reaching the sign-in handler.
+        Assert.True(resp.StatusCode is HttpStatusCode.Unauthorized or HttpStatusCode.UnsupportedMediaType, $"{(int)resp.StatusCode}");
+        Assert.False(resp.Headers.Contains("Set-Cookie"));
+        Assert.Equal(HttpStatusCode.Unauthorized, (await client.GetAsync("/api/v1/me")).StatusCode);
+        Assert.DoesNotContain(Audit(t, "signin"), a => a.Actor == "fay");
+    }
+
+    [Fact]
     public async Task CookieWrite_NeedsTheAntiforgeryHeader_AndSucceedsWithIt()
     {
         await using var t = await TestApp.StartAsync(runJobs: false);
@@ -176,8 +193,25 @@ public sealed class AccountTests
         var resp = await t.Client.PostAsync("/api/v1/uploads", form);
         Assert.Equal(HttpStatusCode.RequestEntityTooLarge, resp.StatusCode);
         Assert.Equal("application/problem+json", resp.Content.Headers.ContentType!.MediaType);
+
+        // Without Content-Length (chunked) the size is known only while reading: the form reader's limit answers 413 too.
+        var chunkedForm = Fixtures.Form(Fixtures.StarList, [("big.csv", Fixtures.Photometry("T-CEP-1", 5.37, 13.9, nights: 60))]);
+        var bytes = await chunkedForm.ReadAsByteArrayAsync();
+        var chunked = new StreamContent(new NoLengthStream(bytes));
+        chunked.Headers.ContentType = chunkedForm.Headers.ContentType;
+        var resp2 = await t.Client.PostAsync("/api/v1/uploads", chunked);
+        Assert.Equal(HttpStatusCode.RequestEntityTooLarge, resp2.StatusCode);
+        Assert.Contains("is over the limit", (await Json(resp2)).GetProperty("detail").GetString());
         using var c = t.Db.Open();
         Assert.Equal(0, ObservationStore.Count(c));
+    }
+
+    /// <summary>A read-only stream that does not know its length, so the client sends the body chunked.</summary>
+    private sealed class NoLengthStream(byte[] data) : MemoryStream(data)
+    {
+        public override bool CanSeek => false;
+        public override long Length => throw new NotSupportedException();
+        public override long Position { get => base.Position; set => throw new NotSupportedException(); }
     }
 
     [Fact]
