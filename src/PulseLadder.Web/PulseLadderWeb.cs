@@ -64,6 +64,7 @@ public static class PulseLadderWeb
         });
 
         var app = builder.Build();
+        if (options.Auth.SingleUser) AuthSetup.StopUnlessBoundToLoopback(app);
 
         // The web host owns the schema: migrate before anything (hosted services, requests) touches the database.
         database.Migrate(app.Services.GetRequiredService<TimeProvider>());

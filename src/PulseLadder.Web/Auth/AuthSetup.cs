@@ -191,6 +191,22 @@ internal static class AuthSetup
         return null;
     }
 
+    /// <summary>
+    /// Second line behind the settings check: once the server runs, every address it actually bound must be loopback
+    /// (catches endpoints configured some other way); otherwise the host stops at once.
+    /// </summary>
+    public static void StopUnlessBoundToLoopback(WebApplication app) =>
+        app.Lifetime.ApplicationStarted.Register(() =>
+        {
+            var addresses = app.Services.GetRequiredService<Microsoft.AspNetCore.Hosting.Server.IServer>()
+                .Features.Get<Microsoft.AspNetCore.Hosting.Server.Features.IServerAddressesFeature>()?.Addresses ?? [];
+            if (addresses.FirstOrDefault(a => !IsLoopbackUrl(a)) is { } bad)
+            {
+                app.Logger.LogCritical("Single-user mode listens on loopback addresses only, but the server is bound to {Address}: stopping.", bad);
+                app.Lifetime.StopApplication();
+            }
+        });
+
     internal static bool IsLoopbackUrl(string url)
     {
         int start = url.IndexOf("://", StringComparison.Ordinal);
