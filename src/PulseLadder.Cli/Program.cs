@@ -13,6 +13,12 @@ app.Configure(c =>
     c.AddCommand<ExportCommand>("export").WithDescription("Download a field's distance estimates.");
     c.AddCommand<BenchPipelineCommand>("bench-pipeline").WithDescription("Measure the star pipeline per stage on the demo campaign.");
     c.AddCommand<ReproduceCommand>("reproduce").WithDescription("Rerun a star's stored analysis from the database and report any difference.");
+    c.AddBranch("user", u =>
+    {
+        u.SetDescription("Accounts on the server's database (works directly on the database, like serve).");
+        u.AddCommand<UserAddCommand>("add").WithDescription("Create an account; the password is read from standard input.");
+        u.AddCommand<UserTokenCommand>("token").WithDescription("Create a personal API token for an account and print it once.");
+    });
     c.AddCommand<DemoDataCommand>("demo-data").WithDescription("Write the invented demo campaign to a folder.");
     c.PropagateExceptions();
 });

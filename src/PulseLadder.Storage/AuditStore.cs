@@ -12,4 +12,15 @@ public static class AuditStore
 
     public static IReadOnlyList<AuditRow> Recent(DbConnection c, int limit) =>
         c.Query<AuditRow>("SELECT * FROM audit_log ORDER BY id DESC LIMIT @limit", new { limit }).AsList();
+
+    /// <summary>
+    /// One page of the log, newest first: entries with id below <paramref name="beforeId"/> (all when null), at most
+    /// <paramref name="limit"/>; <paramref name="action"/> keeps only entries whose action starts with it.
+    /// </summary>
+    public static IReadOnlyList<AuditRow> Page(DbConnection c, long? beforeId, int limit, string? action = null) =>
+        c.Query<AuditRow>("""
+            SELECT * FROM audit_log
+            WHERE (@beforeId IS NULL OR id < @beforeId) AND (@action IS NULL OR substr(action, 1, @n) = @action)
+            ORDER BY id DESC LIMIT @limit
+            """, new { beforeId, limit, action, n = action?.Length ?? 0 }).AsList();
 }

@@ -17,6 +17,12 @@ public sealed class PulseLadderOptions
     /// <summary>Largest number of photometry rows per upload.</summary>
     public int MaxUploadRows { get; set; } = 20_000_000;
 
+    /// <summary>Sign-in and single-user mode (section PulseLadder:Auth).</summary>
+    public Auth.AuthOptions Auth { get; set; } = new();
+
+    /// <summary>Request rates and time limits (section PulseLadder:Limits).</summary>
+    public Auth.LimitsOptions Limits { get; set; } = new();
+
     public string EffectiveDatabase => string.IsNullOrWhiteSpace(Database)
         ? "sqlite:" + Path.Combine(Path.GetFullPath(DataDir), "pulseladder.db")
         : Database;
@@ -28,6 +34,6 @@ public sealed class PulseLadderOptions
             return $"Setting '{Section}:Database' must start with 'sqlite:' or 'postgres:'.";
         if (MaxUploadBytes < 1024) return $"Setting '{Section}:MaxUploadBytes' must be at least 1024.";
         if (MaxUploadRows < 1) return $"Setting '{Section}:MaxUploadRows' must be positive.";
-        return null;
+        return Auth.Validate() ?? Limits.Validate();
     }
 }

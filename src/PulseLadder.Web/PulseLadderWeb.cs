@@ -4,6 +4,7 @@ using Microsoft.Extensions.Options;
 using PulseLadder.Jobs;
 using PulseLadder.Storage;
 using PulseLadder.Web.Api;
+using PulseLadder.Web.Auth;
 
 namespace PulseLadder.Web;
 
@@ -43,8 +44,27 @@ public static class PulseLadderWeb
         });
         builder.Services.Configure<FormOptions>(o => o.MultipartBodyLengthLimit = options.MaxUploadBytes);
         builder.WebHost.ConfigureKestrel(k => k.Limits.MaxRequestBodySize = options.MaxUploadBytes);
+        builder.AddPulseLadderAuth(options);
+        builder.Services.Configure<ExceptionHandlerOptions>(o =>
+        {
+            o.StatusCodeSelector = ex => ex switch
+            {
+                // Kestrel's body limit (a body without Content-Length that grows too long) and the multipart limit.
+                BadHttpRequestException b => b.StatusCode,
+                InvalidDataException d when IsLengthLimit(d) => 413,
+                _ => 500,
+            };
+            // A client's oversized or malformed request is its error, not the server's: no error log for it.
+            o.SuppressDiagnosticsCallback = ctx => ctx.Exception is BadHttpRequestException || (ctx.Exception is InvalidDataException d && IsLengthLimit(d));
+        });
+        builder.Services.Configure<ProblemDetailsOptions>(o => o.CustomizeProblemDetails = ctx =>
+        {
+            if (ctx.ProblemDetails.Status == 413 && ctx.ProblemDetails.Detail is null)
+                ctx.ProblemDetails.Detail = $"The request body is over the limit of {options.MaxUploadBytes} bytes (setting 'PulseLadder:MaxUploadBytes').";
+        });
 
         var app = builder.Build();
+        if (options.Auth.SingleUser) AuthSetup.StopUnlessBoundToLoopback(app);
 
         // The web host owns the schema: migrate before anything (hosted services, requests) touches the database.
         database.Migrate(app.Services.GetRequiredService<TimeProvider>());
@@ -59,12 +79,25 @@ public static class PulseLadderWeb
             await next();
         });
         app.UseStatusCodePages();
+        app.Use((ctx, next) => AuthSetup.BodySizeGuardAsync(ctx, next, options.MaxUploadBytes));
         app.UseDefaultFiles();
+        // The sign-in page and its files are the only static files served without an account.
+        app.UseWhen(ctx => AuthSetup.IsPublicFile(ctx.Request.Path), b => b.UseStaticFiles());
+        app.UseRouting();
+        app.UseAuthentication();
+        app.UseRateLimiter();
+        app.UseRequestTimeouts();
+        app.Use(AuthSetup.CsrfGuardAsync);
+        app.UseAuthorization();
+        // After UseAuthorization: the fallback policy (signed in) covers every other page and file.
         app.UseStaticFiles();
-        app.MapOpenApi("/openapi/{documentName}.json");
-        app.MapGet("/health", () => TypedResults.Ok(new { status = "ok" })).ExcludeFromDescription();
-        app.MapHangfireDashboard("/jobs");
+        app.MapOpenApi("/openapi/{documentName}.json").RequireAuthorization(Policies.Observer);
+        app.MapGet("/health", () => TypedResults.Ok(new { status = "ok" })).AllowAnonymous().ExcludeFromDescription();
+        app.MapHangfireDashboard("/jobs", new DashboardOptions { Authorization = [new AdminDashboardFilter()] })
+            .RequireAuthorization(Policies.Admin);
         var api = app.MapGroup("/api/v1");
+        AccountApi.Map(api);
+        AdminApi.Map(api);
         UploadsApi.Map(api);
         FieldsApi.Map(api);
         StarsApi.Map(api);
@@ -72,4 +105,6 @@ public static class PulseLadderWeb
         ExportApi.Map(api);
         return app;
     }
+
+    private static bool IsLengthLimit(InvalidDataException e) => e.Message.Contains("length limit", StringComparison.OrdinalIgnoreCase);
 }

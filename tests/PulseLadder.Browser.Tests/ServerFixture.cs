@@ -23,6 +23,17 @@ public class ServerFixture : IAsyncLifetime
     private readonly StringBuilder _serverLog = new();
     private IPlaywright? _playwright;
 
+    public const string AdminName = "bt-admin";
+
+    /// <summary>A throw-away password of this run (never a default: the account is created per test run).</summary>
+    public string AdminPassword { get; } = "bt-" + Guid.NewGuid().ToString("N");
+
+    /// <summary>Extra `serve` options, e.g. --single-user.</summary>
+    protected virtual string[] ServeOptions => [];
+
+    /// <summary>Whether to create the admin account (with `pulseladder user add`) and an API token for <see cref="Http"/>.</summary>
+    protected virtual bool CreateAccounts => true;
+
     public string BaseUrl { get; private set; } = "";
     public string DataDir { get; } = Path.Combine(Path.GetTempPath(), "plx-browser-" + Guid.NewGuid().ToString("N")[..10]);
     public HttpClient Http { get; private set; } = new();
@@ -53,6 +64,13 @@ public class ServerFixture : IAsyncLifetime
         int port = FreePort();
         BaseUrl = $"http://127.0.0.1:{port}";
         Directory.CreateDirectory(DataDir);
+        string? token = null;
+        if (CreateAccounts)
+        {
+            // The first admin, made as a deployment makes it: the CLI on the server's database, password on stdin.
+            await RunCliAsync(dll, ["user", "add", AdminName, "--role", "admin", "--password-stdin", "--data-dir", DataDir], AdminPassword + "\n");
+            token = (await RunCliAsync(dll, ["user", "token", AdminName, "--label", "browser-tests", "--data-dir", DataDir], null)).Trim();
+        }
         var psi = new ProcessStartInfo("dotnet")
         {
             WorkingDirectory = AppContext.BaseDirectory,
@@ -60,7 +78,7 @@ public class ServerFixture : IAsyncLifetime
             RedirectStandardError = true,
             UseShellExecute = false,
         };
-        foreach (var a in new[] { dll, "serve", "--urls", BaseUrl, "--data-dir", DataDir }) psi.ArgumentList.Add(a);
+        foreach (var a in new[] { dll, "serve", "--urls", BaseUrl, "--data-dir", DataDir }.Concat(ServeOptions)) psi.ArgumentList.Add(a);
         psi.Environment["DOTNET_NOLOGO"] = "1";
         _server = Process.Start(psi) ?? throw new InvalidOperationException("could not start the server");
         _server.OutputDataReceived += (_, e) => { if (e.Data is not null) lock (_serverLog) _serverLog.AppendLine(e.Data); };
@@ -69,6 +87,7 @@ public class ServerFixture : IAsyncLifetime
         _server.BeginErrorReadLine();
 
         Http = new HttpClient { BaseAddress = new Uri(BaseUrl), Timeout = TimeSpan.FromSeconds(30) };
+        if (token is not null) Http.DefaultRequestHeaders.Authorization = new System.Net.Http.Headers.AuthenticationHeaderValue("Bearer", token);
         await WaitUntil(async () =>
         {
             if (_server.HasExited) throw new InvalidOperationException($"server exited with {_server.ExitCode}:\n{ServerLog}");
@@ -99,14 +118,23 @@ public class ServerFixture : IAsyncLifetime
         try { Directory.Delete(DataDir, recursive: true); } catch (IOException) { } catch (UnauthorizedAccessException) { }
     }
 
-    /// <summary>A page at 1280x800 whose console errors and failed requests are collected.</summary>
-    public async Task<(IPage Page, List<string> Problems)> NewPageAsync()
+    /// <summary>
+    /// A page at 1280x800 whose console errors and failed requests are collected. <paramref name="signIn"/>: the
+    /// context is signed in as the admin first (POST /api/v1/session through the context, so it holds the cookie;
+    /// the sign-in page itself has its own test).
+    /// </summary>
+    public async Task<(IPage Page, List<string> Problems)> NewPageAsync(bool signIn = true)
     {
         var context = await Browser.NewContextAsync(new BrowserNewContextOptions
         {
             ViewportSize = new ViewportSize { Width = 1280, Height = 800 },
             BaseURL = BaseUrl,
         });
+        if (signIn && CreateAccounts)
+        {
+            var res = await context.APIRequest.PostAsync("/api/v1/session", new APIRequestContextOptions { DataObject = new { name = AdminName, password = AdminPassword } });
+            if (res.Status != 200) throw new InvalidOperationException($"sign-in failed: {res.Status} {await res.TextAsync()}");
+        }
         var page = await context.NewPageAsync();
         var problems = new List<string>();
         page.Console += (_, m) => { if (m.Type == "error") lock (problems) problems.Add("console: " + m.Text); };
@@ -167,6 +195,27 @@ public class ServerFixture : IAsyncLifetime
             await Task.Delay(250);
         }
         throw new TimeoutException($"timed out waiting for {what}. Server log tail:\n{Tail(ServerLog, 3000)}");
+    }
+
+    /// <summary>Runs `dotnet pulseladder.dll ARGS` to completion and returns its standard output.</summary>
+    private static async Task<string> RunCliAsync(string dll, IEnumerable<string> args, string? stdin)
+    {
+        var psi = new ProcessStartInfo("dotnet")
+        {
+            WorkingDirectory = AppContext.BaseDirectory, RedirectStandardOutput = true, RedirectStandardError = true,
+            RedirectStandardInput = true, UseShellExecute = false,
+        };
+        psi.ArgumentList.Add(dll);
+        foreach (var a in args) psi.ArgumentList.Add(a);
+        psi.Environment["DOTNET_NOLOGO"] = "1";
+        using var p = Process.Start(psi) ?? throw new InvalidOperationException("could not start pulseladder");
+        if (stdin is not null) await p.StandardInput.WriteAsync(stdin);
+        p.StandardInput.Close();
+        var output = p.StandardOutput.ReadToEndAsync();
+        var error = p.StandardError.ReadToEndAsync();
+        await p.WaitForExitAsync();
+        if (p.ExitCode != 0) throw new InvalidOperationException($"pulseladder {string.Join(' ', args)} exited with {p.ExitCode}: {await error}");
+        return await output;
     }
 
     private static string Tail(string s, int n) => s.Length <= n ? s : s[^n..];

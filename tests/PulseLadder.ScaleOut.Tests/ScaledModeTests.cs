@@ -43,6 +43,15 @@ public sealed class ScaledModeTests(ITestOutputHelper output)
             var web = Start("web", "serve", "--urls", url, "--database", setting, "--jobs", "postgres", "--no-jobs");
             using var http = new HttpClient { BaseAddress = new Uri(url + "/"), Timeout = TimeSpan.FromMinutes(5) };
             await WaitForHealth(http, web);
+            // Nothing answers without an account: a token-only admin and its token, made with the CLI on the database.
+            Assert.Equal(System.Net.HttpStatusCode.Unauthorized, (await http.GetAsync("api/v1/progress")).StatusCode);
+            http.DefaultRequestHeaders.Authorization = new System.Net.Http.Headers.AuthenticationHeaderValue("Bearer", CreateAdminToken(setting));
+            // The account store's and audit log's SQL on PostgreSQL: the CLI's entries, filtered and paged.
+            foreach (var q in new[] { "api/v1/audit?limit=5&action=token:", "api/v1/audit?limit=5&action=token:&before=999999999" })
+            {
+                var page = System.Text.Json.JsonDocument.Parse(await http.GetStringAsync(q)).RootElement.GetProperty("items");
+                Assert.Equal("token:create", Assert.Single(page.EnumerateArray()).GetProperty("action").GetString());
+            }
 
             var sw = Stopwatch.StartNew();
             using (var form = new MultipartFormDataContent())
@@ -144,6 +153,17 @@ public sealed class ScaledModeTests(ITestOutputHelper output)
             // The server may be restarting; ask again on the next poll.
             return -1;
         }
+    }
+
+    /// <summary>`pulseladder user add ci-admin --role admin --no-password`, then `user token`: returns the printed token.</summary>
+    internal static string CreateAdminToken(string setting)
+    {
+        using (var add = PulseLadderProcess.Start("user-add", ["user", "add", "ci-admin", "--role", "admin", "--no-password", "--database", setting]))
+            Assert.True(add.WaitForExit(TimeSpan.FromSeconds(90)) == 0, "user add failed:\n" + add.Output);
+        using var token = PulseLadderProcess.Start("user-token", ["user", "token", "ci-admin", "--label", "scale-out tests", "--database", setting]);
+        Assert.True(token.WaitForExit(TimeSpan.FromSeconds(90)) == 0, "user token failed:\n" + token.Output);
+        // The token is the only line starting with the token prefix (the note goes to standard error).
+        return token.Output.Split('\n').Select(l => l.Trim()).Single(l => l.StartsWith("plx_", StringComparison.Ordinal));
     }
 
     internal static async Task WaitForHealth(HttpClient http, PulseLadderProcess web)

@@ -10,6 +10,9 @@ public sealed class ExportCommand : Command<ExportCommand.Settings>
         [CommandOption("--server <URL>")]
         public string Server { get; init; } = "http://127.0.0.1:5000";
 
+        [CommandOption("--token <TOKEN>"), Description("Personal API token (default: the PULSELADDER_TOKEN environment variable).")]
+        public string? Token { get; init; }
+
         [CommandOption("--field <NAME>"), Description("Field name (or numeric id); omit for the whole campaign in one table.")]
         public string? Field { get; init; }
 
@@ -28,7 +31,7 @@ public sealed class ExportCommand : Command<ExportCommand.Settings>
 
     public override int Execute(CommandContext context, Settings s, CancellationToken ct)
     {
-        using var client = new ServerClient(s.Server);
+        using var client = new ServerClient(s.Server, s.Token);
         string query = $"export?format={Uri.EscapeDataString(s.Format)}&accepted_only={(s.AcceptedOnly ? "true" : "false")}"
             + (string.IsNullOrWhiteSpace(s.Columns) ? "" : "&columns=" + Uri.EscapeDataString(s.Columns));
         string path = "api/v1/" + query;

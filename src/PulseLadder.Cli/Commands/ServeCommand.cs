@@ -28,8 +28,11 @@ public sealed class ServeCommand : Command<ServeCommand.Settings>
         [CommandOption("--no-jobs"), Description("Run no job server here (workers elsewhere do the work).")]
         public bool NoJobs { get; init; }
 
-        [CommandOption("--demo"), Description("Load the invented demo campaign when the database is empty.")]
+        [CommandOption("--demo"), Description("Load the invented demo campaign when the database is empty (implies --single-user).")]
         public bool Demo { get; init; }
+
+        [CommandOption("--single-user"), Description("No sign-in: every request acts as the local admin. Loopback addresses only.")]
+        public bool SingleUser { get; init; }
     }
 
     public override int Execute(CommandContext context, Settings settings, CancellationToken cancellationToken)
@@ -41,6 +44,8 @@ public sealed class ServeCommand : Command<ServeCommand.Settings>
         Set("PulseLadder:Jobs:Storage", settings.Jobs);
         Set("PulseLadder:Jobs:Workers", settings.Workers?.ToString(System.Globalization.CultureInfo.InvariantCulture));
         if (settings.NoJobs) Set("PulseLadder:Jobs:RunServer", "false");
+        // The demo is one person trying the service on their own machine: no account to create first.
+        if (settings.SingleUser || settings.Demo) Set("PulseLadder:Auth:SingleUser", "true");
         var app = PulseLadderWeb.Build(args.ToArray());
         if (settings.Demo)
         {
@@ -48,7 +53,9 @@ public sealed class ServeCommand : Command<ServeCommand.Settings>
             int stars = DemoLoader.LoadIfEmpty(db, app.Services.GetRequiredService<TimeProvider>());
             Console.WriteLine(stars > 0 ? $"Loaded the demo campaign: {stars} stars queued for analysis." : "Database not empty: demo campaign not loaded.");
         }
-        Console.WriteLine($"PulseLadder is serving on {settings.Urls}");
+        Console.WriteLine($"PulseLadder is serving on {settings.Urls}" + (settings.SingleUser || settings.Demo
+            ? " in single-user mode (no sign-in; every request is the local admin)"
+            : ""));
         app.StartAsync(cancellationToken).GetAwaiter().GetResult();
         app.WaitForShutdownAsync(cancellationToken).GetAwaiter().GetResult();
         return 0;

@@ -11,6 +11,9 @@ public sealed class StatusCommand : Command<StatusCommand.Settings>
         [CommandOption("--server <URL>")]
         public string Server { get; init; } = "http://127.0.0.1:5000";
 
+        [CommandOption("--token <TOKEN>"), Description("Personal API token (default: the PULSELADDER_TOKEN environment variable).")]
+        public string? Token { get; init; }
+
         [CommandOption("--upload <ID>"), Description("Progress of one upload instead of the whole campaign.")]
         public long? Upload { get; init; }
 
@@ -23,7 +26,7 @@ public sealed class StatusCommand : Command<StatusCommand.Settings>
 
     public override int Execute(CommandContext context, Settings s, CancellationToken ct)
     {
-        using var client = new ServerClient(s.Server);
+        using var client = new ServerClient(s.Server, s.Token);
         string path = s.Upload is { } id ? $"api/v1/uploads/{id}" : "api/v1/progress";
         (long total, long done) Read()
         {

@@ -14,6 +14,9 @@ public sealed class UploadCommand : Command<UploadCommand.Settings>
         [CommandOption("--server <URL>"), Description("Server address, e.g. http://127.0.0.1:5000.")]
         public string Server { get; init; } = "http://127.0.0.1:5000";
 
+        [CommandOption("--token <TOKEN>"), Description("Personal API token (default: the PULSELADDER_TOKEN environment variable).")]
+        public string? Token { get; init; }
+
         [CommandOption("--stars <FILE>")]
         public string? Stars { get; init; }
 
@@ -35,7 +38,7 @@ public sealed class UploadCommand : Command<UploadCommand.Settings>
 
     public override int Execute(CommandContext context, Settings s, CancellationToken ct)
     {
-        using var client = new ServerClient(s.Server);
+        using var client = new ServerClient(s.Server, s.Token);
         var fields = new Dictionary<string, string?>
         {
             ["time_scale"] = s.TimeScale, ["time_offset"] = s.TimeOffset, ["star"] = s.Star, ["band"] = s.Band, ["observer"] = s.Observer,

@@ -2,6 +2,7 @@ using System.Text;
 using Microsoft.AspNetCore.Http.HttpResults;
 using Microsoft.AspNetCore.Mvc;
 using PulseLadder.Storage;
+using PulseLadder.Web.Auth;
 using PulseLadder.Web.Export;
 
 namespace PulseLadder.Web.Api;
@@ -11,11 +12,11 @@ public static class ExportApi
 {
     public static void Map(RouteGroupBuilder api)
     {
-        api.MapGet("/fields/{fieldId:long}/export", Export).WithName("ExportField");
-        api.MapGet("/export", ExportCampaign).WithName("ExportCampaign");
-        api.MapGet("/fields/{fieldId:long}/methods", Methods).WithName("GetFieldMethods");
-        api.MapGet("/fields/{fieldId:long}/figures/pl.svg", PlFigure).WithName("GetFieldPlFigure");
-        api.MapGet("/stars/{starId:long}/figures/lightcurve.svg", LightCurveFigure).WithName("GetStarLightCurveFigure");
+        api.MapGet("/fields/{fieldId:long}/export", Export).RequireAuthorization(Policies.Reviewer).WithRequestTimeout(AuthSetup.LongRequest).WithName("ExportField");
+        api.MapGet("/export", ExportCampaign).RequireAuthorization(Policies.Reviewer).WithRequestTimeout(AuthSetup.LongRequest).WithName("ExportCampaign");
+        api.MapGet("/fields/{fieldId:long}/methods", Methods).RequireAuthorization(Policies.Reviewer).WithName("GetFieldMethods");
+        api.MapGet("/fields/{fieldId:long}/figures/pl.svg", PlFigure).RequireAuthorization(Policies.Reviewer).WithName("GetFieldPlFigure");
+        api.MapGet("/stars/{starId:long}/figures/lightcurve.svg", LightCurveFigure).RequireAuthorization(Policies.Reviewer).WithName("GetStarLightCurveFigure");
     }
 
     /// <summary>One field's rows; <c>columns</c> is a comma-separated subset of the known columns (400 naming the first unknown one).</summary>

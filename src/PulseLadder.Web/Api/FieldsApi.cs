@@ -1,6 +1,7 @@
 using Microsoft.AspNetCore.Http.HttpResults;
 using PulseLadder.Core.Pipeline;
 using PulseLadder.Storage;
+using PulseLadder.Web.Auth;
 
 namespace PulseLadder.Web.Api;
 
@@ -17,12 +18,12 @@ public static class FieldsApi
 {
     public static void Map(RouteGroupBuilder api)
     {
-        api.MapGet("/fields", List).WithName("ListFields");
-        api.MapGet("/fields/{fieldId:long}/stars", Stars).WithName("ListFieldStars");
-        api.MapGet("/fields/{fieldId:long}/summary", Summary).WithName("GetFieldSummary");
-        api.MapGet("/progress", Progress).WithName("GetProgress");
-        api.MapPut("/fields/{fieldId:long}/settings", SetSettings).WithName("SetFieldSettings");
-        api.MapGet("/calibrations", Calibrations).WithName("ListCalibrations");
+        api.MapGet("/fields", List).RequireAuthorization(Policies.Observer).WithName("ListFields");
+        api.MapGet("/fields/{fieldId:long}/stars", Stars).RequireAuthorization(Policies.Observer).WithName("ListFieldStars");
+        api.MapGet("/fields/{fieldId:long}/summary", Summary).RequireAuthorization(Policies.Observer).WithName("GetFieldSummary");
+        api.MapGet("/progress", Progress).RequireAuthorization(Policies.Observer).WithName("GetProgress");
+        api.MapPut("/fields/{fieldId:long}/settings", SetSettings).RequireAuthorization(Policies.Admin).WithName("SetFieldSettings");
+        api.MapGet("/calibrations", Calibrations).RequireAuthorization(Policies.Observer).WithName("ListCalibrations");
     }
 
     public static Ok<List<FieldDto>> List(Database db)
@@ -76,7 +77,7 @@ public static class FieldsApi
     }
 
     public static Results<Ok<FieldDto>, ProblemHttpResult, ValidationProblem> SetSettings(
-        Database db, PulseLadder.Jobs.IAnalysisQueue queue, TimeProvider clock, long fieldId, FieldSettingsRequest body)
+        Database db, PulseLadder.Jobs.IAnalysisQueue queue, TimeProvider clock, System.Security.Claims.ClaimsPrincipal user, long fieldId, FieldSettingsRequest body)
     {
         var errors = new Dictionary<string, string[]>();
         if (body.CalibrationId is { } id && !Core.Calibration.CalibrationRegistry.Embedded.TryGet(id, out _))
@@ -92,7 +93,7 @@ public static class FieldsApi
             FieldStore.SetSettings(c, tx, fieldId, body.CalibrationId, body.DefaultEbv);
             // New settings make every result of the field stale: each star gets a new revision.
             StarStore.BumpRevision(c, tx, StarStore.ListByField(c, fieldId, tx).Select(s => s.Id));
-            AuditStore.Append(c, tx, now, body.By ?? "admin", "field:settings", $"field {f.Name}",
+            AuditStore.Append(c, tx, now, user.Identity!.Name!, "field:settings", $"field {f.Name}",
                 $"calibration {f.CalibrationId ?? "-"} -> {body.CalibrationId ?? "-"}; default_ebv {f.DefaultEbv?.ToString("R", System.Globalization.CultureInfo.InvariantCulture) ?? "-"} -> {body.DefaultEbv?.ToString("R", System.Globalization.CultureInfo.InvariantCulture) ?? "-"}");
             tx.Commit();
         }
@@ -112,7 +113,7 @@ public static class FieldsApi
         TypedResults.Problem(title: "Not found", detail: detail, statusCode: 404);
 }
 
-public sealed record FieldSettingsRequest(string? CalibrationId, double? DefaultEbv, string? By);
+public sealed record FieldSettingsRequest(string? CalibrationId, double? DefaultEbv);
 
 public sealed record CalibrationDto(string Id, IReadOnlyList<string> Classes, string Band, string Source, string Table, string Tag, string Notes, double PeriodMinDays, double PeriodMaxDays);
 

@@ -4,11 +4,12 @@ using PulseLadder.Core.Photometry;
 using PulseLadder.Core.Pipeline;
 using PulseLadder.Jobs;
 using PulseLadder.Storage;
+using PulseLadder.Web.Auth;
 
 namespace PulseLadder.Web.Api;
 
 /// <summary>A reviewer's decision about a star.</summary>
-public sealed record DecisionRequest(string Action, double? PeriodDays, string? Class, string? Note, string? By);
+public sealed record DecisionRequest(string Action, double? PeriodDays, string? Class, string? Note);
 
 public sealed record DecisionResponse(long DecisionId, string State, bool Queued);
 
@@ -19,12 +20,12 @@ public static class ReviewApi
 
     public static void Map(RouteGroupBuilder api)
     {
-        api.MapPost("/stars/{starId:long}/decisions", Decide).WithName("PostDecision");
-        api.MapGet("/review/next", Next).WithName("NextForReview");
+        api.MapPost("/stars/{starId:long}/decisions", Decide).RequireAuthorization(Policies.Reviewer).WithName("PostDecision");
+        api.MapGet("/review/next", Next).RequireAuthorization(Policies.Observer).WithName("NextForReview");
     }
 
     public static Results<Created<DecisionResponse>, ProblemHttpResult, ValidationProblem> Decide(
-        Database db, IAnalysisQueue queue, TimeProvider clock, long starId, DecisionRequest body)
+        Database db, IAnalysisQueue queue, TimeProvider clock, System.Security.Claims.ClaimsPrincipal user, long starId, DecisionRequest body)
     {
         var errors = new Dictionary<string, string[]>();
         if (!Actions.Contains(body.Action)) errors["action"] = [$"must be one of {string.Join(", ", Actions)}"];
@@ -37,7 +38,8 @@ public static class ReviewApi
         if (errors.Count > 0) return TypedResults.ValidationProblem(errors);
 
         string now = clock.GetUtcNow().ToString("O");
-        string by = string.IsNullOrWhiteSpace(body.By) ? "reviewer" : body.By.Trim();
+        // The signed-in account, never a body field: the audit trail must name who really decided.
+        string by = user.Identity!.Name!;
         using var c = db.Open();
         using var tx = c.BeginTransaction();
         var s = StarStore.Get(c, starId, tx);

@@ -3,6 +3,7 @@ using Microsoft.AspNetCore.Http.HttpResults;
 using PulseLadder.Core.Pipeline;
 using PulseLadder.Core.TimeScales;
 using PulseLadder.Storage;
+using PulseLadder.Web.Auth;
 
 namespace PulseLadder.Web.Api;
 
@@ -19,8 +20,8 @@ public static class StarsApi
 {
     public static void Map(RouteGroupBuilder api)
     {
-        api.MapGet("/stars/{starId:long}", Get).WithName("GetStar");
-        api.MapGet("/stars/by-name/{name}", GetByName).WithName("GetStarByName");
+        api.MapGet("/stars/{starId:long}", Get).RequireAuthorization(Policies.Observer).WithName("GetStar");
+        api.MapGet("/stars/by-name/{name}", GetByName).RequireAuthorization(Policies.Observer).WithName("GetStarByName");
     }
 
     public static Results<Ok<StarDetailDto>, ProblemHttpResult> Get(Database db, long starId)

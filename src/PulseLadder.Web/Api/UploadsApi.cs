@@ -6,6 +6,7 @@ using PulseLadder.Core.Photometry;
 using PulseLadder.Core.Pipeline;
 using PulseLadder.Jobs;
 using PulseLadder.Storage;
+using PulseLadder.Web.Auth;
 
 namespace PulseLadder.Web.Api;
 
@@ -26,9 +27,9 @@ public static class UploadsApi
 {
     public static void Map(RouteGroupBuilder api)
     {
-        api.MapPost("/uploads", Create).DisableAntiforgery().WithName("CreateUpload");
-        api.MapGet("/uploads/{uploadId:long}", Status).WithName("GetUpload");
-        api.MapGet("/time-scales", () => TypedResults.Ok(TimeScales.AllCodes)).WithName("ListTimeScales");
+        api.MapPost("/uploads", Create).DisableAntiforgery().RequireAuthorization(Policies.Observer).WithRequestTimeout(AuthSetup.LongRequest).WithName("CreateUpload");
+        api.MapGet("/uploads/{uploadId:long}", Status).RequireAuthorization(Policies.Observer).WithName("GetUpload");
+        api.MapGet("/time-scales", () => TypedResults.Ok(TimeScales.AllCodes)).RequireAuthorization(Policies.Observer).WithName("ListTimeScales");
     }
 
     public static async Task<Results<Created<UploadResponse>, Ok<UploadResponse>, ProblemHttpResult>> Create(
@@ -85,7 +86,8 @@ public static class UploadsApi
         if (preview)
             return TypedResults.Ok(new UploadResponse(null, false, false, reports, 0, 0, 0));
 
-        string actor = form["by"].FirstOrDefault() is { Length: > 0 } by ? by : "uploader";
+        // The signed-in account, never a form field: the audit trail must name who really sent the data.
+        string actor = request.HttpContext.User.Identity!.Name!;
         var outcome = UploadWriter.Store(db, starList, photometry, actor, clock);
         foreach (var (starId, revision) in outcome.StarsToAnalyse) queue.EnqueueStar(starId, revision);
         var dup = outcome.DuplicateFiles.ToHashSet();

@@ -13,6 +13,10 @@ export class ApiError extends Error {
 }
 
 async function parse(res) {
+  if (res.status === 401) {
+    // The session ended (expired, signed out elsewhere, account disabled): back to the sign-in page.
+    location.assign(`/signin.html?return=${encodeURIComponent(location.pathname + location.search)}`);
+  }
   if (res.status === 204) return null;
   const type = res.headers.get('content-type') || '';
   const body = type.includes('json') ? await res.json().catch(() => null) : null;
@@ -20,20 +24,34 @@ async function parse(res) {
   return body;
 }
 
+// Antiforgery: every state-changing request sends the token in this header (docs/security.md). Fetched once per page.
+let csrf = null;
+async function csrfHeaders() {
+  if (!csrf) {
+    csrf = fetch(BASE + '/antiforgery', { headers: { accept: 'application/json' } }).then(parse)
+      .then((t) => ({ [t.header_name]: t.token }))
+      .catch((e) => { csrf = null; throw e; });
+  }
+  return csrf;
+}
+
 export async function get(path) {
   return parse(await fetch(BASE + path, { headers: { accept: 'application/json' } }));
 }
 
-export async function post(path, body) {
-  return parse(await fetch(BASE + path, {
-    method: 'POST',
-    headers: { 'content-type': 'application/json', accept: 'application/json' },
-    body: JSON.stringify(body),
-  }));
+async function send(method, path, body) {
+  const headers = { accept: 'application/json', ...(await csrfHeaders()) };
+  if (body !== undefined) headers['content-type'] = 'application/json';
+  return parse(await fetch(BASE + path, { method, headers, body: body === undefined ? undefined : JSON.stringify(body) }));
 }
 
+export const post = (path, body) => send('POST', path, body);
+export const put = (path, body) => send('PUT', path, body);
+export const del = (path) => send('DELETE', path);
+
 export async function postForm(path, formData) {
-  return parse(await fetch(BASE + path, { method: 'POST', body: formData, headers: { accept: 'application/json' } }));
+  const headers = { accept: 'application/json', ...(await csrfHeaders()) };
+  return parse(await fetch(BASE + path, { method: 'POST', body: formData, headers }));
 }
 
 export const api = {
@@ -52,6 +70,17 @@ export const api = {
   uploadStatus: (id) => get(`/uploads/${id}`),
   progress: () => get('/progress'),
   timeScales: () => get('/time-scales'),
+  me: () => get('/me'),
+  signOut: () => del('/session'),
+  tokens: () => get('/tokens'),
+  createToken: (name) => post('/tokens', { name }),
+  revokeToken: (id) => del(`/tokens/${id}`),
+  users: () => get('/users'),
+  createUser: (user) => post('/users', user),
+  updateUser: (name, change) => put(`/users/${encodeURIComponent(name)}`, change),
+  userTokens: (name) => get(`/users/${encodeURIComponent(name)}/tokens`),
+  revokeUserToken: (name, id) => del(`/users/${encodeURIComponent(name)}/tokens/${id}`),
+  audit: (before) => get(before ? `/audit?limit=50&before=${before}` : '/audit?limit=50'),
   exportUrl: (fieldId, format, acceptedOnly) =>
     `${BASE}/fields/${fieldId}/export?format=${format}${acceptedOnly ? '&accepted_only=true' : ''}`,
 };

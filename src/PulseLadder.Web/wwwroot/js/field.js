@@ -1,11 +1,13 @@
 // Field page: star table (sort, filter, search), distance summary with its error budget, PL diagram.
 import { api, STATE_LABELS, CLASS_LABELS, CLASS_SHORT, classCode } from './api.js';
 import { el, replace, $, num, pm, sig, kpc, queryInt } from './dom.js';
-import { initShell } from './shell.js';
+import { initShell, hasRole } from './shell.js';
 import { scatter } from './plots.js';
 import { budgetTable } from './budget.js';
 
 initShell();
+// Exports are for reviewers and admins (docs/security.md): observers do not get links that would answer 403.
+hasRole('reviewer').then((may) => { if (!may) $('#export-actions').hidden = true; });
 
 const fieldId = queryInt('id');
 let rows = [];

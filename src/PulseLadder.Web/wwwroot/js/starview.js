@@ -5,6 +5,7 @@ import { el, replace, num, pm, sig, kpc, announce, sleep } from './dom.js';
 import { scatter, periodogram, setMarker, bandColour, shade } from './plots.js';
 import { phaseOf, sampleFit, fourier, fitFourier, rms } from './fold.js';
 import { budgetTable } from './budget.js';
+import { whoAmI } from './shell.js';
 
 /** Plain-language explanations of the cleaning and clipping reasons the pipeline records. */
 const REASONS = {
@@ -26,9 +27,6 @@ const ACTION_LABELS = {
 
 const PREVIEW_ORDER = 4;
 
-function reviewer() {
-  return localStorage.getItem('pulseladder.reviewer') || 'reviewer';
-}
 
 /**
  * Renders star `starId` into `root`. Returns a controller: { ready (promise), accept(), reject(), usePeriod(),
@@ -161,9 +159,16 @@ class StarView {
   actionsBar() {
     const d = this.detail;
     const current = d.class?.class ?? d.star.class ?? 'unknown';
-    const nameInput = el('input', { id: 'reviewer-name', type: 'text', value: reviewer(), style: 'width:7rem', autocomplete: 'name',
-      on: { change: (e) => localStorage.setItem('pulseladder.reviewer', e.target.value.trim() || 'reviewer') } });
-    return el('div', { class: 'actions', style: 'margin-top:.45rem' },
+    // Decisions are recorded under the signed-in account (the server ignores any name the page might send).
+    const deciding = el('span', { id: 'deciding-as', class: 'muted', text: '' });
+    whoAmI.then((me) => {
+      if (me.role === 'observer') {
+        // Decisions need the reviewer role: the buttons would only meet 403.
+        deciding.textContent = `Signed in as observer ${me.name}: decisions need a reviewer`;
+        for (const b of bar.querySelectorAll('button')) b.disabled = true;
+      } else deciding.textContent = `Deciding as ${me.name}`;
+    }, () => {});
+    const bar = el('div', { class: 'actions', style: 'margin-top:.45rem' },
       el('button', { type: 'button', class: 'good', id: 'btn-accept', on: { click: () => this.accept() } }, 'Accept ', el('kbd', { text: 'A' })),
       el('button', { type: 'button', class: 'bad', id: 'btn-reject', on: { click: () => this.reject() } }, 'Reject ', el('kbd', { text: 'R' })),
       el('button', { type: 'button', class: 'primary', id: 'btn-use-period', on: { click: () => this.usePeriod() } }, 'Use folded period ', el('kbd', { text: 'P' })),
@@ -177,8 +182,8 @@ class StarView {
         el('input', { id: 'note-input', type: 'text', style: 'width:12rem', placeholder: 'why, what to check…',
           on: { keydown: (e) => { if (e.key === 'Enter') this.addNote(); } } }),
         el('button', { type: 'button', id: 'btn-note', on: { click: () => this.addNote() } }, 'Add note')),
-      el('span', { style: 'display:inline-flex;gap:.35rem;align-items:center;margin-left:auto' },
-        el('label', { for: 'reviewer-name', class: 'toggle', text: 'Your name' }), nameInput));
+      el('span', { style: 'display:inline-flex;gap:.35rem;align-items:center;margin-left:auto' }, deciding));
+    return bar;
   }
 
   peaksTable() {
@@ -432,7 +437,7 @@ class StarView {
     if (this.busy) return null;
     this.busy = true;
     try {
-      const res = await api.decide(this.starId, { ...body, by: reviewer() });
+      const res = await api.decide(this.starId, body);
       announce(doneText, 'ok');
       return res;
     } catch (e) {
