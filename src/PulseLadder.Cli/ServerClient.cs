@@ -4,9 +4,28 @@ using System.Text.Json;
 namespace PulseLadder.Cli;
 
 /// <summary>HTTP client of a running PulseLadder server (upload, status, export).</summary>
-public sealed class ServerClient(string server) : IDisposable
+public sealed class ServerClient : IDisposable
 {
-    private readonly HttpClient _http = new() { BaseAddress = new Uri(server.TrimEnd('/') + "/"), Timeout = TimeSpan.FromMinutes(30) };
+    private readonly HttpClient _http;
+    private readonly bool _ownsHttp;
+
+    /// <summary>A client of the server at <paramref name="server"/> (base URL), with its own HttpClient.</summary>
+    public ServerClient(string server)
+    {
+        _http = new HttpClient { BaseAddress = new Uri(server.TrimEnd('/') + "/"), Timeout = TimeSpan.FromMinutes(30) };
+        _ownsHttp = true;
+    }
+
+    /// <summary>
+    /// A client over a caller's HttpClient (its BaseAddress is the server; in-process test servers, custom handlers).
+    /// The caller keeps ownership: <see cref="Dispose"/> leaves <paramref name="http"/> open.
+    /// </summary>
+    public ServerClient(HttpClient http)
+    {
+        ArgumentNullException.ThrowIfNull(http);
+        _http = http;
+        _ownsHttp = false;
+    }
 
     public static readonly JsonSerializerOptions JsonOptions = new() { PropertyNamingPolicy = JsonNamingPolicy.SnakeCaseLower };
 
@@ -43,5 +62,8 @@ public sealed class ServerClient(string server) : IDisposable
         return await resp.Content.ReadAsByteArrayAsync(ct);
     }
 
-    public void Dispose() => _http.Dispose();
+    public void Dispose()
+    {
+        if (_ownsHttp) _http.Dispose();
+    }
 }
