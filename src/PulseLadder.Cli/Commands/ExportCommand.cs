@@ -3,7 +3,7 @@ using Spectre.Console.Cli;
 
 namespace PulseLadder.Cli.Commands;
 
-public sealed class ExportCommand : Command<ExportCommand.Settings>
+public sealed class ExportCommand(IServerClientFactory clients) : Command<ExportCommand.Settings>
 {
     public sealed class Settings : CommandSettings
     {
@@ -28,7 +28,7 @@ public sealed class ExportCommand : Command<ExportCommand.Settings>
 
     public override int Execute(CommandContext context, Settings s, CancellationToken ct)
     {
-        using var client = new ServerClient(s.Server);
+        using var client = clients.Create(s.Server);
         string query = $"export?format={Uri.EscapeDataString(s.Format)}&accepted_only={(s.AcceptedOnly ? "true" : "false")}"
             + (string.IsNullOrWhiteSpace(s.Columns) ? "" : "&columns=" + Uri.EscapeDataString(s.Columns));
         string path = "api/v1/" + query;
