@@ -27,7 +27,7 @@ public sealed class CorpusMutationTests
         IngestIssueCode.EmptyField, IngestIssueCode.NotANumber, IngestIssueCode.NotFinite, IngestIssueCode.ErrorNotPositive,
         IngestIssueCode.ErrorTooLarge, IngestIssueCode.MagnitudeOutOfRange, IngestIssueCode.UnknownBand, IngestIssueCode.TimeOutOfRange,
         IngestIssueCode.UnknownStar, IngestIssueCode.PositionOutOfRange, IngestIssueCode.UnknownClass, IngestIssueCode.ValueOutOfRange,
-        IngestIssueCode.MissingColumn, IngestIssueCode.DuplicateColumn,
+        IngestIssueCode.MissingColumn, IngestIssueCode.DuplicateColumn, IngestIssueCode.ControlCharacter,
     ];
 
     public static TheoryData<string> Folders() => new() { "photometry-csv", "plain-text", "star-list" };
