@@ -86,5 +86,6 @@ public static class LightCurveSvg
 
     private static string F(double v) => v.ToString("0.##", CultureInfo.InvariantCulture);
 
-    private static string Esc(string s) => SecurityElement.Escape(s) ?? "";
+    // Characters XML 1.0 cannot hold (C0 controls in names of older data) become U+FFFD so the figure stays well-formed.
+    private static string Esc(string s) => SecurityElement.Escape(new string(s.Select(ch => char.IsSurrogate(ch) || System.Xml.XmlConvert.IsXmlChar(ch) ? ch : '\uFFFD').ToArray())) ?? "";
 }

@@ -99,5 +99,6 @@ public static class PlDiagramSvg
 
     private static string Num(double v) => Math.Round(v, 3).ToString("0.###", CultureInfo.InvariantCulture);
 
-    private static string Esc(string s) => SecurityElement.Escape(s) ?? "";
+    // Characters XML 1.0 cannot hold (C0 controls in names of older data) become U+FFFD so the figure stays well-formed.
+    private static string Esc(string s) => SecurityElement.Escape(new string(s.Select(ch => char.IsSurrogate(ch) || System.Xml.XmlConvert.IsXmlChar(ch) ? ch : '\uFFFD').ToArray())) ?? "";
 }

@@ -95,14 +95,14 @@ internal static class ExportWriters
             w.WriteStartElement("VOTABLE", ns);
             w.WriteAttributeString("version", "1.4");
             w.WriteStartElement("RESOURCE", ns);
-            w.WriteAttributeString("name", meta.Title);
+            w.WriteAttributeString("name", Xml(meta.Title));
             w.WriteAttributeString("type", "results");
             Info(w, ns, "software", "PulseLadder " + meta.SoftwareVersion);
             Info(w, ns, "methods", meta.Methods);
             w.WriteStartElement("TABLE", ns);
-            w.WriteAttributeString("name", meta.Title + "-distances");
+            w.WriteAttributeString("name", Xml(meta.Title) + "-distances");
             w.WriteAttributeString("nrows", rows.Count.ToString(CultureInfo.InvariantCulture));
-            w.WriteElementString("DESCRIPTION", ns, meta.Methods);
+            w.WriteElementString("DESCRIPTION", ns, Xml(meta.Methods));
             Param(w, ns, "pipeline_version", "meta.version", string.Join(",", meta.PipelineVersions), "Pipeline version(s) of the exported results");
             Param(w, ns, "software_version", "meta.version", meta.SoftwareVersion, "Version of the software that wrote this file");
             Param(w, ns, "relation_ids", "meta.ref", string.Join(",", meta.RelationIds), "Period-luminosity relations used by the distances");
@@ -111,7 +111,7 @@ internal static class ExportWriters
             foreach (var c in columns)
             {
                 w.WriteStartElement("FIELD", ns);
-                w.WriteAttributeString("name", c.Name);
+                w.WriteAttributeString("name", Xml(c.Name));
                 // No ID: band names come from uploads and need not be XML NCNames; readers then key columns by name.
                 if (c.Kind == ExportKind.Number) w.WriteAttributeString("datatype", "double");
                 else { w.WriteAttributeString("datatype", "char"); w.WriteAttributeString("arraysize", "*"); }
@@ -128,7 +128,7 @@ internal static class ExportWriters
                 foreach (var c in columns)
                 {
                     var v = c.Value(r);
-                    w.WriteElementString("TD", ns, v is double d && !double.IsFinite(d) ? "" : ExportColumns.Format(v));
+                    w.WriteElementString("TD", ns, v is double d && !double.IsFinite(d) ? "" : Xml(ExportColumns.Format(v)));
                 }
                 w.WriteEndElement();
             }
@@ -146,7 +146,7 @@ internal static class ExportWriters
     {
         w.WriteStartElement("INFO", ns);
         w.WriteAttributeString("name", name);
-        w.WriteAttributeString("value", value);
+        w.WriteAttributeString("value", Xml(value));
         w.WriteEndElement();
     }
 
@@ -157,9 +157,31 @@ internal static class ExportWriters
         w.WriteAttributeString("datatype", "char");
         w.WriteAttributeString("arraysize", "*");
         w.WriteAttributeString("ucd", ucd);
-        w.WriteAttributeString("value", value);
+        w.WriteAttributeString("value", Xml(value));
         w.WriteElementString("DESCRIPTION", ns, description);
         w.WriteEndElement();
+    }
+
+    /// <summary>
+    /// Text as XML 1.0 can carry it: characters XML forbids (most C0 controls, lone surrogates), which older
+    /// databases may hold in names, become U+FFFD instead of failing the whole export.
+    /// </summary>
+    internal static string Xml(string s)
+    {
+        int bad = -1;
+        for (int i = 0; i < s.Length && bad < 0; i++)
+        {
+            if (char.IsHighSurrogate(s[i]) && i + 1 < s.Length && char.IsLowSurrogate(s[i + 1])) { i++; continue; }
+            if (!XmlConvert.IsXmlChar(s[i])) bad = i;
+        }
+        if (bad < 0) return s;
+        var sb = new StringBuilder(s.Length);
+        for (int i = 0; i < s.Length; i++)
+        {
+            if (char.IsHighSurrogate(s[i]) && i + 1 < s.Length && char.IsLowSurrogate(s[i + 1])) { sb.Append(s[i]).Append(s[i + 1]); i++; }
+            else sb.Append(XmlConvert.IsXmlChar(s[i]) ? s[i] : '\uFFFD');
+        }
+        return sb.ToString();
     }
 
     private static void WriteArray(Utf8JsonWriter w, string name, IReadOnlyList<string> values)
