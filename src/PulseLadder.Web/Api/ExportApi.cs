@@ -14,6 +14,7 @@ public static class ExportApi
         api.MapGet("/fields/{fieldId:long}/export", Export).WithName("ExportField");
         api.MapGet("/export", ExportCampaign).WithName("ExportCampaign");
         api.MapGet("/fields/{fieldId:long}/methods", Methods).WithName("GetFieldMethods");
+        api.MapGet("/fields/{fieldId:long}/audit", Audit).WithName("GetFieldAudit");
         api.MapGet("/fields/{fieldId:long}/figures/pl.svg", PlFigure).WithName("GetFieldPlFigure");
         api.MapGet("/stars/{starId:long}/figures/lightcurve.svg", LightCurveFigure).WithName("GetStarLightCurveFigure");
         api.MapGet("/fields/{fieldId:long}/figures/pl.png", PlFigurePng).WithName("GetFieldPlFigurePng");
@@ -39,6 +40,24 @@ public static class ExportApi
         using var c = db.Open();
         var ids = FieldStore.List(c).Select(f => f.Id).Order().ToList();
         return Write(ExportSet.Load(c, ids, acceptedOnly == true), fmt, "campaign", acceptedOnly == true, columns);
+    }
+
+    /// <summary>
+    /// The audit entries exported with a field's results (uploads that touched its stars, review decisions, settings
+    /// changes), oldest first: <c>format=csv</c> (default) or <c>json</c>. The JSON and VOTable exports carry the same
+    /// entries inline.
+    /// </summary>
+    public static Results<FileContentHttpResult, ProblemHttpResult> Audit(Database db, long fieldId, string? format)
+    {
+        string fmt = (format ?? "csv").ToLowerInvariant();
+        if (fmt is not ("csv" or "json")) return TypedResults.Problem(title: "Unknown format", detail: "format must be csv or json", statusCode: 400);
+        using var c = db.Open();
+        var f = FieldStore.Get(c, fieldId);
+        if (f is null) return FieldsApi.NotFound($"No field with id {fieldId}.");
+        var audit = AuditStore.ForField(c, fieldId);
+        return fmt == "json"
+            ? TypedResults.File(System.Text.Json.JsonSerializer.SerializeToUtf8Bytes(audit, Json.Options), "application/json", SafeFileName(f.Name) + "-audit.json")
+            : TypedResults.File(Encoding.UTF8.GetBytes(ExportWriters.AuditCsv(audit)), "text/csv", SafeFileName(f.Name) + "-audit.csv");
     }
 
     /// <summary>

@@ -12,8 +12,9 @@ namespace PulseLadder.Web.Export;
 /// <param name="RelationIds">Period-luminosity relations used by the exported distances.</param>
 /// <param name="AnchorIds">Zero-point anchors used by the exported distances.</param>
 /// <param name="Methods">The plain-text methods paragraph (MethodsReport).</param>
+/// <param name="Audit">Who uploaded and decided what, when (append-only audit log entries of the exported fields).</param>
 internal sealed record ExportMetadata(string Title, string SoftwareVersion, IReadOnlyList<string> PipelineVersions,
-    IReadOnlyList<string> RelationIds, IReadOnlyList<string> AnchorIds, bool AcceptedOnly, string Methods);
+    IReadOnlyList<string> RelationIds, IReadOnlyList<string> AnchorIds, bool AcceptedOnly, string Methods, IReadOnlyList<Storage.AuditRow> Audit);
 
 /// <summary>CSV, JSON and VOTable 1.4 writers over one column selection; all three carry the same values.</summary>
 internal static class ExportWriters
@@ -30,7 +31,8 @@ internal static class ExportWriters
 
     /// <summary>
     /// <c>{ "title", "software_version", "pipeline_versions", "relation_ids", "anchor_ids", "accepted_only", "methods",
-    /// "columns": [{name, unit, ucd, description}], "rows": [{column: value}] }</c>; numbers as JSON numbers, null as null.
+    /// "columns": [{name, unit, ucd, description}], "rows": [{column: value}], "audit": [{id, at, actor, action, subject,
+    /// detail}] }</c>; numbers as JSON numbers, null as null.
     /// </summary>
     public static byte[] Json(IReadOnlyList<StarRowDto> rows, IReadOnlyList<ExportColumn> columns, ExportMetadata meta)
     {
@@ -73,9 +75,31 @@ internal static class ExportWriters
                 w.WriteEndObject();
             }
             w.WriteEndArray();
+            w.WriteStartArray("audit");
+            foreach (var a in meta.Audit)
+            {
+                w.WriteStartObject();
+                w.WriteNumber("id", a.Id);
+                w.WriteString("at", a.At);
+                w.WriteString("actor", a.Actor);
+                w.WriteString("action", a.Action);
+                w.WriteString("subject", a.Subject);
+                w.WriteString("detail", a.Detail);
+                w.WriteEndObject();
+            }
+            w.WriteEndArray();
             w.WriteEndObject();
         }
         return ms.ToArray();
+    }
+
+    /// <summary>The audit entries as RFC 4180 CSV: <c>id,at,actor,action,subject,detail</c> (the CSV companion of a table export).</summary>
+    public static string AuditCsv(IReadOnlyList<Storage.AuditRow> audit)
+    {
+        var sb = new StringBuilder("id,at,actor,action,subject,detail\n");
+        foreach (var a in audit)
+            sb.AppendJoin(',', [a.Id.ToString(CultureInfo.InvariantCulture), CsvCell(a.At), CsvCell(a.Actor), CsvCell(a.Action), CsvCell(a.Subject), CsvCell(a.Detail)]).Append('\n');
+        return sb.ToString();
     }
 
     /// <summary>
@@ -135,11 +159,49 @@ internal static class ExportWriters
             w.WriteEndElement();
             w.WriteEndElement();
             w.WriteEndElement(); // TABLE
+            AuditTable(w, ns, meta);
             w.WriteEndElement(); // RESOURCE
             w.WriteEndElement(); // VOTABLE
             w.WriteEndDocument();
         }
         return ms.ToArray();
+    }
+
+    /// <summary>Second TABLE "audit": who uploaded and decided what, when.</summary>
+    private static void AuditTable(XmlWriter w, string ns, ExportMetadata meta)
+    {
+        w.WriteStartElement("TABLE", ns);
+        w.WriteAttributeString("name", "audit");
+        w.WriteAttributeString("nrows", meta.Audit.Count.ToString(CultureInfo.InvariantCulture));
+        w.WriteElementString("DESCRIPTION", ns, "Append-only audit log entries of the exported fields: uploads that touched their stars, review decisions, settings changes");
+        void Field(string name, string datatype, string ucd, string description)
+        {
+            w.WriteStartElement("FIELD", ns);
+            w.WriteAttributeString("name", name);
+            w.WriteAttributeString("datatype", datatype);
+            if (datatype == "char") w.WriteAttributeString("arraysize", "*");
+            w.WriteAttributeString("ucd", ucd);
+            w.WriteElementString("DESCRIPTION", ns, description);
+            w.WriteEndElement();
+        }
+        Field("id", "long", "meta.id;meta.main", "Audit entry id (increasing)");
+        Field("at", "char", "time.creation", "When (ISO 8601, UTC)");
+        Field("actor", "char", "meta.id", "Who");
+        Field("action", "char", "meta.code", "What: upload, review:ACTION, field:settings");
+        Field("subject", "char", "meta.id", "On what: batch N, star NAME, field NAME");
+        Field("detail", "char", "meta.note", "Details and the reviewer's note");
+        w.WriteStartElement("DATA", ns);
+        w.WriteStartElement("TABLEDATA", ns);
+        foreach (var a in meta.Audit)
+        {
+            w.WriteStartElement("TR", ns);
+            foreach (var v in new[] { a.Id.ToString(CultureInfo.InvariantCulture), a.At, a.Actor, a.Action, a.Subject, a.Detail })
+                w.WriteElementString("TD", ns, Xml(v));
+            w.WriteEndElement();
+        }
+        w.WriteEndElement();
+        w.WriteEndElement();
+        w.WriteEndElement();
     }
 
     private static void Info(XmlWriter w, string ns, string name, string value)
