@@ -63,7 +63,10 @@ public sealed class CliCommandTests(ExportFixture fx)
         {
             case "csv": Assert.Equal(3, text.Split('\n', StringSplitOptions.RemoveEmptyEntries).Length); break;
             case "json": Assert.Equal(2, JsonDocument.Parse(api).RootElement.GetProperty("rows").GetArrayLength()); break;
-            default: Assert.Equal(2, XDocument.Parse(text).Descendants().Count(x => x.Name.LocalName == "TR")); break;
+            default:
+                var distances = XDocument.Parse(text).Descendants().First(x => x.Name.LocalName == "TABLE");
+                Assert.Equal(2, distances.Descendants().Count(x => x.Name.LocalName == "TR"));
+                break;
         }
     }
 
