@@ -1,30 +1,9 @@
-using PulseLadder.Cli.Commands;
+using PulseLadder.Cli;
 using Spectre.Console.Cli;
 
-var app = new CommandApp();
-app.Configure(c =>
-{
-    c.SetApplicationName("pulseladder");
-    c.AddCommand<ServeCommand>("serve").WithDescription("Run the web service with its job server (embedded default: SQLite + in-memory queue).");
-    c.AddCommand<WorkCommand>("work").WithDescription("Run only a job server (scale-out: PostgreSQL data and queue).");
-    c.AddCommand<AnalyzeCommand>("analyze").WithDescription("Analyse photometry files offline, without a server.");
-    c.AddCommand<UploadCommand>("upload").WithDescription("Upload a star list and photometry to a running server.");
-    c.AddCommand<StatusCommand>("status").WithDescription("Show analysis progress of a running server.");
-    c.AddCommand<ExportCommand>("export").WithDescription("Download a field's distance estimates.");
-    c.AddCommand<BenchPipelineCommand>("bench-pipeline").WithDescription("Measure the star pipeline per stage on the demo campaign.");
-    c.AddCommand<ReproduceCommand>("reproduce").WithDescription("Rerun a star's stored analysis from the database and report any difference.");
-    c.AddBranch("user", u =>
-    {
-        u.SetDescription("Accounts on the server's database (works directly on the database, like serve).");
-        u.AddCommand<UserAddCommand>("add").WithDescription("Create an account; the password is read from standard input.");
-        u.AddCommand<UserTokenCommand>("token").WithDescription("Create a personal API token for an account and print it once.");
-    });
-    c.AddCommand<DemoDataCommand>("demo-data").WithDescription("Write the invented demo campaign to a folder.");
-    c.PropagateExceptions();
-});
 try
 {
-    return app.Run(args);
+    return CliApp.Create().Run(args);
 }
 catch (Exception e) when (e is CommandAppException or InvalidOperationException or FileNotFoundException or HttpRequestException or PulseLadder.Storage.SchemaMismatchException)
 {

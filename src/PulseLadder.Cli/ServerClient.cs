@@ -29,6 +29,7 @@ public sealed class ServerClient : IDisposable
     /// <summary>Uses a configured client as is (base address and credentials already set; e.g. a test server's client).</summary>
     public ServerClient(HttpClient http)
     {
+        ArgumentNullException.ThrowIfNull(http);
         _http = http;
         _ownsHttp = false;
     }

@@ -10,6 +10,21 @@ public static class AuditStore
         c.Execute("INSERT INTO audit_log (at, actor, action, subject, detail) VALUES (@at, @actor, @action, @subject, @detail)",
             new { at, actor, action, subject, detail }, tx);
 
+    /// <summary>
+    /// The entries about one field, oldest first: the uploads that touched any of its stars (batches linked in
+    /// upload_stars), every review decision on its stars, and changes of its settings. Entries are matched by the
+    /// subjects their writers use ("batch N", "star NAME", "field NAME").
+    /// </summary>
+    public static IReadOnlyList<AuditRow> ForField(DbConnection c, long fieldId) =>
+        c.Query<AuditRow>("""
+            SELECT * FROM audit_log
+            WHERE (action = 'upload' AND subject IN (
+                       SELECT 'batch ' || us.batch_id FROM upload_stars us JOIN stars s ON s.id = us.star_id WHERE s.field_id = @fieldId))
+               OR (action LIKE 'review:%' AND subject IN (SELECT 'star ' || name FROM stars WHERE field_id = @fieldId))
+               OR (action = 'field:settings' AND subject IN (SELECT 'field ' || name FROM fields WHERE id = @fieldId))
+            ORDER BY id
+            """, new { fieldId }).AsList();
+
     public static IReadOnlyList<AuditRow> Recent(DbConnection c, int limit) =>
         c.Query<AuditRow>("SELECT * FROM audit_log ORDER BY id DESC LIMIT @limit", new { limit }).AsList();
 

@@ -4,7 +4,7 @@ using Spectre.Console.Cli;
 
 namespace PulseLadder.Cli.Commands;
 
-public sealed class StatusCommand : Command<StatusCommand.Settings>
+public sealed class StatusCommand(IServerClientFactory clients) : Command<StatusCommand.Settings>
 {
     public sealed class Settings : CommandSettings
     {
@@ -26,7 +26,7 @@ public sealed class StatusCommand : Command<StatusCommand.Settings>
 
     public override int Execute(CommandContext context, Settings s, CancellationToken ct)
     {
-        using var client = new ServerClient(s.Server, s.Token);
+        using var client = clients.Create(s.Server, s.Token);
         string path = s.Upload is { } id ? $"api/v1/uploads/{id}" : "api/v1/progress";
         (long total, long done) Read()
         {

@@ -4,7 +4,7 @@ using Spectre.Console.Cli;
 
 namespace PulseLadder.Cli.Commands;
 
-public sealed class UploadCommand : Command<UploadCommand.Settings>
+public sealed class UploadCommand(IServerClientFactory clients) : Command<UploadCommand.Settings>
 {
     public sealed class Settings : CommandSettings
     {
@@ -38,7 +38,7 @@ public sealed class UploadCommand : Command<UploadCommand.Settings>
 
     public override int Execute(CommandContext context, Settings s, CancellationToken ct)
     {
-        using var client = new ServerClient(s.Server, s.Token);
+        using var client = clients.Create(s.Server, s.Token);
         var fields = new Dictionary<string, string?>
         {
             ["time_scale"] = s.TimeScale, ["time_offset"] = s.TimeOffset, ["star"] = s.Star, ["band"] = s.Band, ["observer"] = s.Observer,

@@ -75,13 +75,21 @@ internal sealed class CsvTableReader
         var map = new int[required.Length + optional.Length];
         Array.Fill(map, -1);
         var seen = new HashSet<string>(StringComparer.Ordinal);
+        var reported = new HashSet<string>(StringComparer.Ordinal);
         bool fatal = false;
         for (int i = 0; i < count; i++)
         {
             string name = Field(i).Trim().ToString().ToLowerInvariant();
+            if (name.Length == 0)
+            {
+                // Spreadsheet exports often end the header with empty cells; they name nothing, so they are ignored.
+                _issues.Warning(IngestIssueCode.UnknownColumn, headerLine, $"#{i + 1}", IngestMessages.UnnamedColumn(i + 1));
+                continue;
+            }
             if (!seen.Add(name))
             {
-                _issues.Fatal(IngestIssueCode.DuplicateColumn, headerLine, name, IngestMessages.DuplicateColumn(name));
+                // Once per name and within the error limit: a hostile header must not list thousands of errors.
+                if (reported.Add(name)) _issues.Error(IngestIssueCode.DuplicateColumn, headerLine, name, IngestMessages.DuplicateColumn(name));
                 fatal = true;
                 continue;
             }
@@ -99,6 +107,7 @@ internal sealed class CsvTableReader
                 fatal = true;
             }
         }
+        if (fatal) _issues.Stopped = true;
         return fatal ? null : map;
     }
 

@@ -5,6 +5,27 @@ namespace PulseLadder.Core.Ingest;
 /// <summary>Invariant-culture number parsing of one field with the error wording every parser shares.</summary>
 internal static class FieldParsing
 {
+    /// <summary>
+    /// True when a name or label has no control character. Names travel into XML exports (which cannot carry most
+    /// C0 characters at all), file names, terminals and pages, so they are refused at the edge instead of escaped
+    /// everywhere; records the error otherwise.
+    /// </summary>
+    public static bool TryPrintable(ReadOnlySpan<char> text, IssueCollector issues, long line, string column)
+    {
+        int i = IndexOfControl(text);
+        if (i < 0) return true;
+        issues.Error(IngestIssueCode.ControlCharacter, line, column, IngestMessages.ControlCharacter(text[i], i + 1));
+        return false;
+    }
+
+    /// <summary>Index of the first control character (Unicode category Cc), or -1.</summary>
+    public static int IndexOfControl(ReadOnlySpan<char> text)
+    {
+        for (int i = 0; i < text.Length; i++)
+            if (char.IsControl(text[i])) return i;
+        return -1;
+    }
+
     /// <summary>Parses a required finite number; on failure records the error and returns false.</summary>
     public static bool TryRequired(ReadOnlySpan<char> text, IssueCollector issues, long line, string column, out double value)
     {

@@ -53,6 +53,8 @@ public enum IngestIssueCode
     TooManyErrors,
     /// <summary>A per-upload parameter (band or star of a plain-text file) is not valid.</summary>
     BadParameter,
+    /// <summary>A name or label holds a control character (U+0000..U+001F, U+007F..U+009F): names must be printable text.</summary>
+    ControlCharacter,
 }
 
 /// <summary>

@@ -25,6 +25,11 @@ internal static class IngestMessages
 
     public static string DuplicateColumn(string name) => $"column '{name}' appears twice in the header";
 
+    public static string ControlCharacter(char c, int position) =>
+        string.Create(Inv, $"holds a control character (U+{(int)c:X4}) at position {position}; names must be printable text");
+
+    public static string UnnamedColumn(int position) => string.Create(Inv, $"column {position} of the header has no name; its values are ignored");
+
     public static string UnknownColumn(string name) => $"unknown column '{name}' ignored";
 
     public static string MissingColumn(string name, string[] required) =>

@@ -77,6 +77,8 @@ public static class PhotometryCsv
             ok &= check.TryMag(table.Field(cMag), line, Mag, out double mag);
             ok &= check.TryMagErr(table.Field(cErr), line, MagErr, out double err);
             var obsText = table.Field(cObs);
+            ok &= FieldParsing.TryPrintable(obsText, issues, line, Observer);
+            ok &= FieldParsing.TryPrintable(table.Field(cFlag), issues, line, Flag);
             string observer = obsText.IsEmpty ? check.Symbol(options.DefaultObserver, out int observerId) : check.Symbol(obsText, out observerId);
             var flagText = table.Field(cFlag);
             string? flag = flagText.IsEmpty ? null : check.Pool(flagText);

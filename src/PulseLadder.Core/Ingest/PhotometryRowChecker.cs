@@ -39,6 +39,7 @@ internal sealed class PhotometryRowChecker
             _issues.Error(IngestIssueCode.EmptyField, line, column, IngestMessages.EmptyField);
             return false;
         }
+        if (!FieldParsing.TryPrintable(text, _issues, line, column)) return false;
         star = _symbols.Intern(text, out starId);
         if (_options.KnownStars is { } known && !IsKnown(known, star, starId))
         {

@@ -48,10 +48,14 @@ public static class PlainTextPhotometry
         string starName = (star ?? string.Empty).Trim();
         if (starName.Length == 0)
             issues.Fatal(IngestIssueCode.BadParameter, 0, PhotometryCsv.Star, IngestMessages.EmptyStarParameter);
+        else if (FieldParsing.IndexOfControl(starName) is var ci and >= 0)
+            issues.Fatal(IngestIssueCode.BadParameter, 0, PhotometryCsv.Star, "star " + IngestMessages.ControlCharacter(starName[ci], ci + 1));
         else if (options.KnownStars is { } known && !known.Contains(starName))
             issues.Fatal(IngestIssueCode.UnknownStar, 0, PhotometryCsv.Star, IngestMessages.UnknownStar(starName));
         if (!Bands.TryNormalize(band, out string bandName))
             issues.Fatal(IngestIssueCode.BadParameter, 0, PhotometryCsv.Band, IngestMessages.BadBandParameter(band ?? string.Empty));
+        if (FieldParsing.IndexOfControl(options.DefaultObserver) is var oi and >= 0)
+            issues.Fatal(IngestIssueCode.BadParameter, 0, PhotometryCsv.Observer, "observer " + IngestMessages.ControlCharacter(options.DefaultObserver[oi], oi + 1));
         if (issues.Stopped) return issues.Summary(0, 0);
 
         check.Symbol(starName, out int starId);

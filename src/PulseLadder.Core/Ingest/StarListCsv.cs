@@ -46,6 +46,7 @@ public static class StarListCsv
                 issues.Error(IngestIssueCode.EmptyField, line, Star, IngestMessages.EmptyField);
                 ok = false;
             }
+            else if (!FieldParsing.TryPrintable(nameText, issues, line, Star)) ok = false;
             else
             {
                 name = nameText.ToString();
@@ -62,6 +63,7 @@ public static class StarListCsv
                 issues.Error(IngestIssueCode.EmptyField, line, Field, IngestMessages.EmptyField);
                 ok = false;
             }
+            else ok &= FieldParsing.TryPrintable(fieldText, issues, line, Field);
             ok &= TryRa(table, cRa, issues, line, out double ra);
             ok &= TryDec(table, cDec, issues, line, out double dec);
             ok &= TryClass(table.Field(cClass), issues, line, out PulsatorClass? cls);

@@ -37,7 +37,23 @@ public static class UploadsApi
     {
         if (!request.HasFormContentType)
             return Problem(400, "Not a form upload", "Send multipart/form-data with 'stars' and/or 'photometry' files.", []);
-        var form = await request.ReadFormAsync();
+        // Kestrel refuses an oversize Content-Length itself; other servers (test host, proxies) may not.
+        if (request.ContentLength is { } claimed && claimed > options.Value.MaxUploadBytes)
+            return Problem(413, "Upload too large", $"The request announces {claimed} bytes; the limit is {options.Value.MaxUploadBytes} (setting 'PulseLadder:MaxUploadBytes').", []);
+        IFormCollection form;
+        try
+        {
+            form = await request.ReadFormAsync();
+        }
+        catch (InvalidDataException e) when (e.Message.Contains("limit", StringComparison.OrdinalIgnoreCase))
+        {
+            return Problem(413, "Upload too large", e.Message + $" (setting 'PulseLadder:MaxUploadBytes' is {options.Value.MaxUploadBytes} bytes).", []);
+        }
+        catch (Exception e) when (e is InvalidDataException or IOException or BadHttpRequestException)
+        {
+            // A broken multipart body (unclosed boundary, truncated stream) is the sender's error, not a server fault.
+            return Problem(400, "Malformed form upload", "The multipart/form-data body could not be read: " + e.Message, []);
+        }
         bool preview = string.Equals(form["preview"], "true", StringComparison.OrdinalIgnoreCase);
         var starFile = form.Files.GetFile("stars");
         var photFiles = form.Files.GetFiles("photometry");

@@ -9,7 +9,8 @@ using PulseLadder.Web.Api;
 namespace PulseLadder.Web.Export;
 
 /// <summary>The rows of an export (one field or the whole campaign) with the full stored results behind them.</summary>
-internal sealed record ExportSet(IReadOnlyList<StarRowDto> Rows, IReadOnlyList<StarAnalysis> Analyses)
+/// <param name="Audit">Audit entries of the exported fields' uploads, review decisions and settings, oldest first.</param>
+internal sealed record ExportSet(IReadOnlyList<StarRowDto> Rows, IReadOnlyList<StarAnalysis> Analyses, IReadOnlyList<AuditRow> Audit)
 {
     /// <summary>Product version of this build (informational version, without the source-revision suffix).</summary>
     public static string SoftwareVersion { get; } = ReadVersion();
@@ -23,8 +24,10 @@ internal sealed record ExportSet(IReadOnlyList<StarRowDto> Rows, IReadOnlyList<S
     {
         var rows = new List<StarRowDto>();
         var analyses = new List<StarAnalysis>();
+        var audit = new List<AuditRow>();
         foreach (var fieldId in fieldIds)
         {
+            audit.AddRange(AuditStore.ForField(c, fieldId));
             var fieldRows = StarViews.FieldRows(c, fieldId).Where(r => !acceptedOnly || r.State == ReviewStates.Accepted).ToList();
             rows.AddRange(fieldRows);
             var wanted = fieldRows.Select(r => r.StarId).ToHashSet();
@@ -32,7 +35,8 @@ internal sealed record ExportSet(IReadOnlyList<StarRowDto> Rows, IReadOnlyList<S
                 if (wanted.Contains(a.StarId) && Json.Deserialize<StarAnalysis>(a.ResultJson) is { } r)
                     analyses.Add(r);
         }
-        return new ExportSet(rows, analyses);
+        // A batch that touched several fields appears once.
+        return new ExportSet(rows, analyses, audit.DistinctBy(a => a.Id).OrderBy(a => a.Id).ToList());
     }
 
     public string Methods() => MethodsReport.Write(Analyses, CalibrationRegistry.Embedded, SoftwareVersion);
@@ -40,7 +44,7 @@ internal sealed record ExportSet(IReadOnlyList<StarRowDto> Rows, IReadOnlyList<S
     public ExportMetadata Metadata(string title, bool acceptedOnly) => new(
         title, SoftwareVersion,
         Analyses.Select(a => a.PipelineVersion).Distinct(StringComparer.Ordinal).Order(StringComparer.Ordinal).ToList(),
-        MethodsReport.RelationIds(Analyses), MethodsReport.AnchorIds(Analyses), acceptedOnly, Methods());
+        MethodsReport.RelationIds(Analyses), MethodsReport.AnchorIds(Analyses), acceptedOnly, Methods(), Audit);
 
     private static string ReadVersion()
     {

@@ -87,9 +87,12 @@ public class HostileInputTests
     public void Parse_ReportsErrorsOnly_WhenNulAndControlCharacters()
     {
         var r = Csv(Header + "\nS1\0,2455000.5\u0001,V,12.5,0.01\n");
-        var e = SingleError(r);
-        Assert.Equal("time", e.Column);
-        Assert.Equal("'2455000.5?' is not a number", e.Message);
+        Assert.Empty(r.Rows);
+        Assert.Equal(2, r.Errors.Count);
+        // A NUL in a name is refused (names go into XML exports, which cannot hold it), not stored.
+        Assert.Equal(("star", IngestIssueCode.ControlCharacter), (r.Errors[0].Column, r.Errors[0].Code));
+        Assert.Equal("time", r.Errors[1].Column);
+        Assert.Equal("'2455000.5?' is not a number", r.Errors[1].Message);
     }
 
     [Fact]

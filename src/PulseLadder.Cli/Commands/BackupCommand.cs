@@ -1,0 +1,44 @@
+using System.ComponentModel;
+using PulseLadder.Storage;
+using Spectre.Console.Cli;
+
+namespace PulseLadder.Cli.Commands;
+
+/// <summary>
+/// Writes a consistent snapshot of the embedded SQLite database, safe while the service runs (SQLite online backup).
+/// Exit codes: 0 written, 1 refused (target exists, PostgreSQL database, failed integrity check), 2 no database.
+/// </summary>
+public sealed class BackupCommand : Command<BackupCommand.Settings>
+{
+    public sealed class Settings : CommandSettings
+    {
+        [CommandOption("--out <FILE>"), Description("Snapshot file to write (required).")]
+        public string? Out { get; init; }
+
+        [CommandOption("--data-dir <DIR>"), Description("Folder of the embedded SQLite database (default ./pulseladder-data).")]
+        public string? DataDir { get; init; }
+
+        [CommandOption("--database <SETTING>"), Description("sqlite:PATH or postgres:CONNECTION STRING (overrides --data-dir).")]
+        public string? Database { get; init; }
+
+        [CommandOption("--force"), Description("Overwrite the snapshot file when it exists.")]
+        public bool Force { get; init; }
+    }
+
+    public override int Execute(CommandContext context, Settings s, CancellationToken ct) => Run(s, Console.Out, Console.Error);
+
+    internal static int Run(Settings s, TextWriter output, TextWriter error)
+    {
+        if (string.IsNullOrWhiteSpace(s.Out)) { error.WriteLine("pulseladder backup: --out FILE is required"); return 2; }
+        string setting = !string.IsNullOrWhiteSpace(s.Database) ? s.Database
+            : "sqlite:" + Path.Combine(Path.GetFullPath(s.DataDir ?? "pulseladder-data"), "pulseladder.db");
+        if (setting.StartsWith("sqlite:", StringComparison.OrdinalIgnoreCase) && !File.Exists(setting["sqlite:".Length..]))
+        {
+            error.WriteLine($"pulseladder backup: no database at {setting["sqlite:".Length..]}");
+            return 2;
+        }
+        var r = Backup.ToFile(PulseLadder.Storage.Database.FromSetting(setting), s.Out, s.Force);
+        (r.Ok ? output : error).WriteLine((r.Ok ? "" : "pulseladder backup: ") + r.Message);
+        return r.Ok ? 0 : 1;
+    }
+}
