@@ -26,6 +26,13 @@ public static class WorkerHost
             throw new InvalidOperationException(
                 $"A worker process cannot use in-memory job storage: set '{JobsOptions.Section}:Storage' to 'postgres'.");
         db.EnsureSchemaIsCurrent();
+        // Same folder setting as the web host (PulseLadder:CalibrationDir, default DataDir/calibrations): point both at
+        // one shared folder so they hold the same registry; a bad file stops the worker as it stops the web host.
+        string dataDir = builder.Configuration["PulseLadder:DataDir"] is { Length: > 0 } dd ? dd : "pulseladder-data";
+        string calDir = builder.Configuration[Calibrations.Setting] is { Length: > 0 } cd ? cd : Calibrations.DefaultFolder(dataDir);
+        var registry = Calibrations.LoadFolderOrThrow(calDir);
+        Console.Error.WriteLine($"pulseladder worker: calibration registry {registry.Hash[..12]} ({registry.Relations.Count} relations; administrator files: {(registry.UserFiles.Count == 0 ? "none" : string.Join(", ", registry.UserFiles))}) from {calDir}");
+        builder.Services.AddPulseLadderCalibrations(registry);
         builder.Services.AddSingleton(db);
         builder.Services.AddSingleton(TimeProvider.System);
         builder.Services.AddPulseLadderJobs(jobs, db, isWorkerOnly: true);

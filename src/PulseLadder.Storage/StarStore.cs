@@ -69,6 +69,15 @@ public static class StarStore
             ORDER BY s.id
             """, new { pipelineVersion }).AsList();
 
+    /// <summary>Stars of one field with observations but no analysis for their current revision and this pipeline version.</summary>
+    public static long CountPendingInField(DbConnection c, long fieldId, string pipelineVersion) =>
+        c.ExecuteScalar<long>("""
+            SELECT COUNT(*) FROM stars s
+            WHERE s.field_id = @fieldId
+              AND EXISTS (SELECT 1 FROM observations o WHERE o.star_id = s.id)
+              AND NOT EXISTS (SELECT 1 FROM analyses a WHERE a.star_id = s.id AND a.revision = s.revision AND a.pipeline_version = @pipelineVersion)
+            """, new { fieldId, pipelineVersion });
+
     public static long CountWithObservations(DbConnection c) =>
         c.ExecuteScalar<long>("SELECT COUNT(*) FROM stars s WHERE EXISTS (SELECT 1 FROM observations o WHERE o.star_id = s.id)");
 

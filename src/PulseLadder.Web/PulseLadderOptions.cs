@@ -17,6 +17,16 @@ public sealed class PulseLadderOptions
     /// <summary>Largest number of photometry rows per upload.</summary>
     public int MaxUploadRows { get; set; } = 20_000_000;
 
+    /// <summary>
+    /// Folder of administrator calibration files (*.csv, columns as the embedded relations.csv), read at start-up;
+    /// empty means DataDir/calibrations. Workers read the same setting and must see the same files.
+    /// </summary>
+    public string CalibrationDir { get; set; } = "";
+
+    public string EffectiveCalibrationDir => string.IsNullOrWhiteSpace(CalibrationDir)
+        ? Jobs.Calibrations.DefaultFolder(DataDir)
+        : Path.GetFullPath(CalibrationDir);
+
     public string EffectiveDatabase => string.IsNullOrWhiteSpace(Database)
         ? "sqlite:" + Path.Combine(Path.GetFullPath(DataDir), "pulseladder.db")
         : Database;
