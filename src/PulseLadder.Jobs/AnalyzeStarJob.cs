@@ -59,7 +59,7 @@ public sealed class AnalyzeStarJob(Database db, IAnalysisQueue queue, TimeProvid
             }
             // Checked after our commit: of two jobs finishing together at least the later sees zero, so the field pass
             // is never missed; both seeing zero enqueues it twice, which is harmless (the job is idempotent).
-            fieldDone = StarStore.CountPendingInField(c, star.FieldId, PipelineVersion.Current) == 0;
+            fieldDone = !StarStore.HasPendingInField(c, star.FieldId, PipelineVersion.Current);
         }
         if (star.ReviewState == ReviewStates.Accepted || fieldDone) queue.EnqueueFieldSummary(star.FieldId);
     }
