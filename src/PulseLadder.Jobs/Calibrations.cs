@@ -1,6 +1,7 @@
 using Microsoft.Extensions.DependencyInjection;
 using Microsoft.Extensions.DependencyInjection.Extensions;
 using PulseLadder.Core.Calibration;
+using PulseLadder.Storage;
 
 namespace PulseLadder.Jobs;
 
@@ -49,6 +50,39 @@ public static class Calibrations
                 $"Calibration files in '{folder}' (setting '{Setting}') are invalid; fix or remove them and start again:"
                 + Environment.NewLine + string.Join(Environment.NewLine, res.Errors.Select(e => "  " + e)));
         return res.Registry;
+    }
+
+    /// <summary>Audit-log action under which the web host records the registry hash it runs with (subject = hash).</summary>
+    public const string AuditAction = "calibrations:loaded";
+
+    /// <summary>
+    /// Web host, at start-up after migrating: records the registry hash in the audit log when it differs from the last
+    /// one recorded (so the log shows every change of administrator files, and workers can compare). Returns whether
+    /// an entry was written.
+    /// </summary>
+    public static bool RecordInUse(Database db, CalibrationRegistry registry, string folder, string now)
+    {
+        ArgumentNullException.ThrowIfNull(db);
+        ArgumentNullException.ThrowIfNull(registry);
+        using var c = db.Open();
+        if (AuditStore.LatestOfAction(c, AuditAction) is { } last && last.Subject == registry.Hash) return false;
+        AuditStore.Append(c, null, now, "web", AuditAction, registry.Hash,
+            $"{registry.Relations.Count} relations; administrator files: {(registry.UserFiles.Count == 0 ? "none" : string.Join(", ", registry.UserFiles))}; folder {folder}");
+        return true;
+    }
+
+    /// <summary>
+    /// Worker, at start-up: a warning naming both hashes and the setting when the web host last recorded a different
+    /// registry, else null (also null when the web host has recorded none yet).
+    /// </summary>
+    public static string? CompareWithWebHost(Database db, CalibrationRegistry registry)
+    {
+        ArgumentNullException.ThrowIfNull(db);
+        ArgumentNullException.ThrowIfNull(registry);
+        using var c = db.Open();
+        if (AuditStore.LatestOfAction(c, AuditAction) is not { } last || last.Subject == registry.Hash) return null;
+        return $"this worker's calibration registry {registry.Hash[..12]} differs from the web host's {last.Subject[..Math.Min(12, last.Subject.Length)]} "
+            + $"({last.Detail}); point '{Setting}' of every process at the same files. Analyses record the hash they used.";
     }
 
     /// <summary>Registers <paramref name="registry"/> as the process's one registry (replacing the embedded fallback).</summary>

@@ -10,6 +10,10 @@ public static class AuditStore
         c.Execute("INSERT INTO audit_log (at, actor, action, subject, detail) VALUES (@at, @actor, @action, @subject, @detail)",
             new { at, actor, action, subject, detail }, tx);
 
+    /// <summary>The newest entry with this action, or null.</summary>
+    public static AuditRow? LatestOfAction(DbConnection c, string action) =>
+        c.QueryFirstOrDefault<AuditRow>("SELECT * FROM audit_log WHERE action = @action ORDER BY id DESC LIMIT 1", new { action });
+
     public static IReadOnlyList<AuditRow> Recent(DbConnection c, int limit) =>
         c.Query<AuditRow>("SELECT * FROM audit_log ORDER BY id DESC LIMIT @limit", new { limit }).AsList();
 }

@@ -51,6 +51,7 @@ public static class PulseLadderWeb
 
         // The web host owns the schema: migrate before anything (hosted services, requests) touches the database.
         database.Migrate(app.Services.GetRequiredService<TimeProvider>());
+        Calibrations.RecordInUse(database, calibrations, options.EffectiveCalibrationDir, app.Services.GetRequiredService<TimeProvider>().GetUtcNow().ToString("O"));
         app.Logger.LogInformation("Calibration registry {Hash} ({Count} relations; administrator files: {Files}) from {Folder}",
             calibrations.Hash[..12], calibrations.Relations.Count, calibrations.UserFiles.Count == 0 ? "none" : string.Join(", ", calibrations.UserFiles), options.EffectiveCalibrationDir);
 
