@@ -60,10 +60,12 @@ public static class Classifier
     /// Class of the star: the reviewer's choice wins (source "reviewer"), then the star list's declared class
     /// ("star_list"), else a rule-based suggestion ("suggested") from the period, the peak-to-peak amplitude and the
     /// Fourier parameters R21/phi21/R31 of the best band (I preferred, then V), each rule adding a reason a reviewer
-    /// can read. No PL-plane position is used (one star is classified at a time); Type II versus classical Cepheids
-    /// at the same period is therefore decided only for RV Tau-like double-wave curves, otherwise the suggestion is
-    /// a classical Cepheid with the Type II alternative stated and the confidence capped. Never throws; missing
-    /// inputs lower the confidence. See docs/light-curves.md for the thresholds and their origin.
+    /// can read. No PL-plane position is used here (the light-curve class); Type II versus classical Cepheids at the
+    /// same period is therefore decided only for RV Tau-like double-wave curves, otherwise the suggestion is a
+    /// classical Cepheid with the Type II alternative stated and the confidence capped. The field PL pass
+    /// (<see cref="Pipeline.FieldPass"/>) adds the PL position later through the overload taking a
+    /// <see cref="FieldContext"/>. Never throws; missing inputs lower the confidence. See docs/light-curves.md for the
+    /// thresholds and their origin.
     /// </summary>
     public static ClassSuggestion Classify(StarInfo star, PeriodEstimate? period, PeriodSearchResult? search, IReadOnlyList<BandFit> fits, PulsatorClass? reviewerClass)
         => Classify(star, period, search, fits, reviewerClass, null);
