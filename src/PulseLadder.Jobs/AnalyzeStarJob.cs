@@ -2,6 +2,8 @@ using System.Security.Cryptography;
 using System.Text;
 using Hangfire;
 using Microsoft.Extensions.Logging;
+using PulseLadder.Core.Calibration;
+using PulseLadder.Core.Classification;
 using PulseLadder.Core.Photometry;
 using PulseLadder.Core.Pipeline;
 using PulseLadder.Storage;
@@ -12,8 +14,12 @@ namespace PulseLadder.Jobs;
 /// Analyses one star at one revision: clean to distance, one transaction to store. Arguments are ids only; the job
 /// reloads everything it needs, so it can run twice (Hangfire delivers at least once) and leave one result row.
 /// </summary>
-public sealed class AnalyzeStarJob(Database db, IAnalysisQueue queue, TimeProvider clock, ILogger<AnalyzeStarJob> log)
+public sealed class AnalyzeStarJob(Database db, IAnalysisQueue queue, TimeProvider clock, ILogger<AnalyzeStarJob> log, CalibrationRegistry registry)
 {
+    /// <summary>With the embedded calibration registry only.</summary>
+    public AnalyzeStarJob(Database db, IAnalysisQueue queue, TimeProvider clock, ILogger<AnalyzeStarJob> log)
+        : this(db, queue, clock, log, CalibrationRegistry.Embedded) { }
+
     [Queue("analysis")]
     // Failures here are mostly the database going away (restart, failover): retry soon and long enough to ride out an
     // outage of about an hour, since a job that ends Failed leaves its star pending until the web host restarts.
@@ -36,30 +42,50 @@ public sealed class AnalyzeStarJob(Database db, IAnalysisQueue queue, TimeProvid
             field = FieldStore.Get(c, star.FieldId);
         }
 
-        var settings = SettingsFor(field);
-        var overrides = new ReviewOverrides(
-            star.ChosenPeriodDays,
-            star.ChosenClass is { } cc && PulsatorClasses.TryParse(cc, out var cls) ? cls : null);
+        var settings = SettingsFor(field, registry);
+        var overrides = OverridesFor(star);
         var info = StarStore.ToStarInfo(star);
-        var result = AnalysisPipeline.Run(info, observations, settings, overrides);
-        var row = ToRow(starId, revision, result, InputHash(info, observations, settings, overrides), clock.GetUtcNow().ToString("O"));
+        // Light curve only: the field's PL context is added by the field pass (FieldSummaryJob) once the field is analysed.
+        var result = AnalysisPipeline.Run(info, observations, settings, overrides, registry: registry);
+        var row = ToRow(starId, revision, result, InputHash(info, observations, settings, overrides, null, registry), clock.GetUtcNow().ToString("O"));
 
+        bool fieldDone;
         using (var c = db.Open())
-        using (var tx = c.BeginTransaction())
         {
-            AnalysisStore.Upsert(c, tx, row);
-            tx.Commit();
+            using (var tx = c.BeginTransaction())
+            {
+                AnalysisStore.Upsert(c, tx, row);
+                tx.Commit();
+            }
+            // Checked after our commit: of two jobs finishing together at least the later sees zero, so the field pass
+            // is never missed; both seeing zero enqueues it twice, which is harmless (the job is idempotent).
+            fieldDone = !StarStore.HasPendingInField(c, star.FieldId, PipelineVersion.Current);
         }
-        if (star.ReviewState == ReviewStates.Accepted) queue.EnqueueFieldSummary(star.FieldId);
+        if (star.ReviewState == ReviewStates.Accepted || fieldDone) queue.EnqueueFieldSummary(star.FieldId);
     }
 
-    /// <summary>The defaults, with the field's chosen relation (for the classes it serves) and default E(B-V).</summary>
-    public static PipelineSettings SettingsFor(FieldRow? field)
+    /// <summary>What the reviewer imposed on the star (chosen period, chosen class).</summary>
+    public static ReviewOverrides OverridesFor(StarRow star) => new(
+        star.ChosenPeriodDays,
+        star.ChosenClass is { } cc && PulsatorClasses.TryParse(cc, out var cls) ? cls : null);
+
+    /// <summary>As <see cref="SettingsFor(FieldRow?, CalibrationRegistry)"/> with the embedded registry.</summary>
+    public static PipelineSettings SettingsFor(FieldRow? field) => SettingsFor(field, CalibrationRegistry.Embedded);
+
+    /// <summary>
+    /// The defaults, with the field's chosen relation (for the classes it serves) and default E(B-V). A chosen relation
+    /// missing from <paramref name="registry"/> (an administrator file removed) is still recorded for the classes of
+    /// classical Cepheids, so their distances fail with "unknown_relation" rather than silently using another relation.
+    /// </summary>
+    public static PipelineSettings SettingsFor(FieldRow? field, CalibrationRegistry registry)
     {
+        ArgumentNullException.ThrowIfNull(registry);
         var s = PipelineSettings.Default;
         if (field is null) return s;
         var d = s.Distance with { DefaultEbv = field.DefaultEbv };
-        if (field.CalibrationId is { } id && Core.Calibration.CalibrationRegistry.Embedded.TryGet(id, out var rel))
+        if (field.CalibrationId is { } missing && !registry.TryGet(missing, out _))
+            d = d with { CepheidRelationId = missing };
+        if (field.CalibrationId is { } id && registry.TryGet(id, out var rel))
         {
             if (rel.Classes.Any(c => c is PulsatorClass.ClassicalCepheidFundamental or PulsatorClass.ClassicalCepheidFirstOvertone)) d = d with { CepheidRelationId = id };
             if (rel.Classes.Contains(PulsatorClass.TypeIICepheid)) d = d with { TypeIICepheidRelationId = id };
@@ -85,8 +111,18 @@ public sealed class AnalyzeStarJob(Database db, IAnalysisQueue queue, TimeProvid
 
     /// <summary>SHA-256 over everything the result depends on: provenance, and the check used by "reproduce".</summary>
     public static string InputHash(StarInfo star, IReadOnlyList<Observation> obs, PipelineSettings settings, ReviewOverrides overrides)
+        => InputHash(star, obs, settings, overrides, null, null);
+
+    /// <summary>
+    /// As above, adding the field context the class used (its lines and star-set hash) and the calibration registry's
+    /// hash; both are left out when null, so hashes of results without them are unchanged.
+    /// </summary>
+    public static string InputHash(StarInfo star, IReadOnlyList<Observation> obs, PipelineSettings settings, ReviewOverrides overrides,
+        FieldContext? field, CalibrationRegistry? registry)
     {
         using var h = IncrementalHash.CreateHash(HashAlgorithmName.SHA256);
+        if (field is not null) h.AppendData(Encoding.UTF8.GetBytes("field:" + Json.Serialize(field.Compact())));
+        if (registry is not null) h.AppendData(Encoding.UTF8.GetBytes("calibrations:" + registry.Hash));
         h.AppendData(Encoding.UTF8.GetBytes(Json.Serialize(star)));
         h.AppendData(Encoding.UTF8.GetBytes(Json.Serialize(settings)));
         h.AppendData(Encoding.UTF8.GetBytes(Json.Serialize(overrides)));

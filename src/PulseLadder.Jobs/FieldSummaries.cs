@@ -9,7 +9,7 @@ internal static class FieldSummaries
     internal sealed record Computed(long NUsed, double? Mu, double? MuErr, FieldSummary Detail);
 
     /// <summary>Null when no accepted star carries a distance.</summary>
-    public static Computed? Compute(IReadOnlyList<StarAnalysis> accepted)
+    public static Computed? Compute(IReadOnlyList<StarAnalysis> accepted, Core.Calibration.CalibrationRegistry registry)
     {
         var stars = accepted
             .Where(a => a.Distance is not null)
@@ -17,7 +17,7 @@ internal static class FieldSummaries
             .OfType<FieldStarDistance>()
             .ToList();
         if (stars.Count == 0) return null;
-        var summary = FieldSummarizer.Summarize(stars, new FieldSummarySettings());
+        var summary = FieldSummarizer.Summarize(stars, new FieldSummarySettings(), registry);
         if (summary.FailureReason is not null) return new Computed(0, null, null, summary);
         return new Computed(summary.StarsUsed, summary.Mu, summary.MuErr, summary);
     }

@@ -1,26 +1,38 @@
 using Hangfire;
+using Microsoft.Extensions.Logging;
+using Microsoft.Extensions.Logging.Abstractions;
+using PulseLadder.Core.Calibration;
+using PulseLadder.Core.Classification;
 using PulseLadder.Core.Pipeline;
 using PulseLadder.Storage;
 
 namespace PulseLadder.Jobs;
 
 /// <summary>
-/// Recomputes a field's distance summary from its accepted stars. Idempotent: reads the current state and replaces
-/// the one summary row, so duplicates and retries are harmless.
+/// Per field: first the field PL pass (each analysed star's class suggested again with its position in the field's
+/// period-luminosity plane, distance following the class), then the distance summary from the accepted stars.
+/// Idempotent: reads the current state, rewrites a star's analysis row only when its result changes, and replaces the
+/// one summary row, so duplicates and retries are harmless (Hangfire delivers at least once).
 /// </summary>
-public sealed class FieldSummaryJob(Database db, TimeProvider clock)
+public sealed class FieldSummaryJob(Database db, TimeProvider clock, CalibrationRegistry registry, ILogger<FieldSummaryJob> log)
 {
+    /// <summary>With the embedded calibration registry only.</summary>
+    public FieldSummaryJob(Database db, TimeProvider clock) : this(db, clock, CalibrationRegistry.Embedded, NullLogger<FieldSummaryJob>.Instance) { }
+
     [Queue("summary")]
     [AutomaticRetry(Attempts = 3)]
     public void Run(long fieldId)
     {
         using var c = db.Open();
+        int changed = ClassifyWithField(c, fieldId);
+        if (changed > 0) log.LogInformation("Field {FieldId}: field PL pass updated {Count} star analyses", fieldId, changed);
+
         var stars = StarStore.ListByField(c, fieldId).Where(s => s.ReviewState == ReviewStates.Accepted).ToDictionary(s => s.Id);
         var analyses = AnalysisStore.LatestForField(c, fieldId, PipelineVersion.Current, withJson: true)
             .Where(a => stars.ContainsKey(a.StarId))
             .Select(a => Json.Deserialize<StarAnalysis>(a.ResultJson)!)
             .ToList();
-        var summary = FieldSummaries.Compute(analyses);
+        var summary = FieldSummaries.Compute(analyses, registry);
         using var tx = c.BeginTransaction();
         if (summary is null) FieldSummaryStore.Delete(c, tx, fieldId);
         else
@@ -32,5 +44,46 @@ public sealed class FieldSummaryJob(Database db, TimeProvider clock)
             });
         }
         tx.Commit();
+    }
+
+    /// <summary>
+    /// The field PL pass. The context is built from every star whose newest analysis is for its current revision and
+    /// not rejected by the reviewer, with each star's light-curve class (so the pass never feeds on its own output and
+    /// a second run gives the same context); every such star is then reclassified under it, or without it when the
+    /// field is too small (a context from an earlier, larger star set is dropped). Returns the rows rewritten.
+    /// </summary>
+    internal int ClassifyWithField(System.Data.Common.DbConnection c, long fieldId)
+    {
+        var field = FieldStore.Get(c, fieldId);
+        if (field is null) return 0;
+        var stars = StarStore.ListByField(c, fieldId).Where(s => s.ReviewState != ReviewStates.Rejected).ToDictionary(s => s.Id);
+        var current = AnalysisStore.LatestForField(c, fieldId, PipelineVersion.Current, withJson: true)
+            .Where(a => stars.TryGetValue(a.StarId, out var s) && s.Revision == a.Revision)
+            .Select(a => (Row: a, Result: Json.Deserialize<StarAnalysis>(a.ResultJson)))
+            .Where(x => x.Result is not null)
+            .ToList();
+        FieldContext? context = FieldPass.BuildContext(current.Select(x => x.Result!));
+        int changed = 0;
+        foreach (var (row, result) in current)
+        {
+            if (result!.Outcome != "ok" || (context is null && result.FieldContext is null)) continue;
+            var star = stars[row.StarId];
+            var info = StarStore.ToStarInfo(star);
+            var updated = FieldPass.Reclassify(result, info, context, registry);
+            string json = Json.Serialize(updated);
+            if (string.Equals(json, row.ResultJson, StringComparison.Ordinal)) continue;
+            var observations = ObservationStore.ForStar(c, star.Id);
+            string hash = AnalyzeStarJob.InputHash(info, observations, updated.Settings, updated.Overrides, updated.FieldContext, registry);
+            var newRow = AnalyzeStarJob.ToRow(star.Id, row.Revision, updated, hash, clock.GetUtcNow().ToString("O"));
+            using var tx = c.BeginTransaction();
+            // Only while the star is still at this revision: a newer analysis supersedes this pass.
+            if (StarStore.Get(c, star.Id, tx) is { } now && now.Revision == row.Revision)
+            {
+                AnalysisStore.Upsert(c, tx, newRow);
+                changed++;
+            }
+            tx.Commit();
+        }
+        return changed;
     }
 }

@@ -1,6 +1,7 @@
 using Hangfire;
 using Hangfire.PostgreSql;
 using Microsoft.Extensions.DependencyInjection;
+using Microsoft.Extensions.DependencyInjection.Extensions;
 using PulseLadder.Storage;
 
 namespace PulseLadder.Jobs;
@@ -51,6 +52,8 @@ public static class JobsSetup
             });
         }
         services.AddSingleton<IAnalysisQueue, HangfireAnalysisQueue>();
+        // The embedded relations unless the host registered a registry with administrator files (Calibrations).
+        services.TryAddSingleton(Core.Calibration.CalibrationRegistry.Embedded);
         services.AddTransient<AnalyzeStarJob>();
         services.AddTransient<FieldSummaryJob>();
         return services;

@@ -16,6 +16,8 @@ public sealed class StartupRecovery(Database db, IAnalysisQueue queue, ILogger<S
     {
         int n = EnqueuePending(db, queue);
         if (n > 0) log.LogInformation("Re-enqueued {Count} stars without a current analysis", n);
+        int f = EnqueueCompleteFields(db, queue);
+        if (f > 0) log.LogInformation("Queued the field PL pass and summary of {Count} fully analysed fields", f);
         return Task.CompletedTask;
     }
 
@@ -25,6 +27,18 @@ public sealed class StartupRecovery(Database db, IAnalysisQueue queue, ILogger<S
         var pending = StarStore.Pending(c, PipelineVersion.Current);
         foreach (var (starId, revision) in pending) queue.EnqueueStar(starId, revision);
         return pending.Count;
+    }
+
+    /// <summary>
+    /// Queues the field job (PL pass, then summary) of every field with no pending star: an in-memory queue that died
+    /// with the process may have held it. Fields with pending stars get it when their last analysis lands.
+    /// </summary>
+    public static int EnqueueCompleteFields(Database db, IAnalysisQueue queue)
+    {
+        using var c = db.Open();
+        var done = FieldStore.List(c).Where(f => !StarStore.HasPendingInField(c, f.Id, PipelineVersion.Current)).Select(f => f.Id).ToList();
+        foreach (var id in done) queue.EnqueueFieldSummary(id);
+        return done.Count;
     }
 
     public Task StopAsync(CancellationToken cancellationToken) => Task.CompletedTask;

@@ -25,7 +25,15 @@ public static class WorkerHost
         if (jobs.Storage == "inmemory")
             throw new InvalidOperationException(
                 $"A worker process cannot use in-memory job storage: set '{JobsOptions.Section}:Storage' to 'postgres'.");
+        // Same folder setting as the web host (PulseLadder:CalibrationDir, default DataDir/calibrations): point both at
+        // one shared folder so they hold the same registry; a bad file stops the worker as it stops the web host.
+        string dataDir = builder.Configuration["PulseLadder:DataDir"] is { Length: > 0 } dd ? dd : "pulseladder-data";
+        string calDir = builder.Configuration[Calibrations.Setting] is { Length: > 0 } cd ? Path.GetFullPath(cd) : Calibrations.DefaultFolder(dataDir);
+        var registry = Calibrations.LoadFolderOrThrow(calDir);
         db.EnsureSchemaIsCurrent();
+        Console.Error.WriteLine($"pulseladder worker: calibration registry {registry.Hash[..12]} ({registry.Relations.Count} relations; administrator files: {(registry.UserFiles.Count == 0 ? "none" : string.Join(", ", registry.UserFiles))}) from {calDir}");
+        if (Calibrations.CompareWithWebHost(db, registry) is { } warning) Console.Error.WriteLine("pulseladder worker: WARNING: " + warning);
+        builder.Services.AddPulseLadderCalibrations(registry);
         builder.Services.AddSingleton(db);
         builder.Services.AddSingleton(TimeProvider.System);
         builder.Services.AddPulseLadderJobs(jobs, db, isWorkerOnly: true);

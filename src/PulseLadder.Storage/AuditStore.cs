@@ -25,6 +25,10 @@ public static class AuditStore
             ORDER BY id
             """, new { fieldId }).AsList();
 
+    /// <summary>The newest entry with this action, or null.</summary>
+    public static AuditRow? LatestOfAction(DbConnection c, string action) =>
+        c.QueryFirstOrDefault<AuditRow>("SELECT * FROM audit_log WHERE action = @action ORDER BY id DESC LIMIT 1", new { action });
+
     public static IReadOnlyList<AuditRow> Recent(DbConnection c, int limit) =>
         c.Query<AuditRow>("SELECT * FROM audit_log ORDER BY id DESC LIMIT @limit", new { limit }).AsList();
 

@@ -69,6 +69,21 @@ public static class StarStore
             ORDER BY s.id
             """, new { pipelineVersion }).AsList();
 
+    /// <summary>
+    /// Whether any star of the field has observations but no analysis for its current revision and this pipeline
+    /// version. Newest stars are probed first: jobs run roughly in id order, so while a field is being analysed the
+    /// first probe usually hits, and a full scan of the field happens only near its end.
+    /// </summary>
+    public static bool HasPendingInField(DbConnection c, long fieldId, string pipelineVersion) =>
+        c.QueryFirstOrDefault<long?>("""
+            SELECT s.id FROM stars s
+            WHERE s.field_id = @fieldId
+              AND EXISTS (SELECT 1 FROM observations o WHERE o.star_id = s.id)
+              AND NOT EXISTS (SELECT 1 FROM analyses a WHERE a.star_id = s.id AND a.revision = s.revision AND a.pipeline_version = @pipelineVersion)
+            ORDER BY s.id DESC
+            LIMIT 1
+            """, new { fieldId, pipelineVersion }) is not null;
+
     public static long CountWithObservations(DbConnection c) =>
         c.ExecuteScalar<long>("SELECT COUNT(*) FROM stars s WHERE EXISTS (SELECT 1 FROM observations o WHERE o.star_id = s.id)");
 

@@ -23,6 +23,16 @@ public sealed class PulseLadderOptions
     /// <summary>Request rates and time limits (section PulseLadder:Limits).</summary>
     public Auth.LimitsOptions Limits { get; set; } = new();
 
+    /// <summary>
+    /// Folder of administrator calibration files (*.csv, columns as the embedded relations.csv), read at start-up;
+    /// empty means DataDir/calibrations. Workers read the same setting and must see the same files.
+    /// </summary>
+    public string CalibrationDir { get; set; } = "";
+
+    public string EffectiveCalibrationDir => string.IsNullOrWhiteSpace(CalibrationDir)
+        ? Jobs.Calibrations.DefaultFolder(DataDir)
+        : Path.GetFullPath(CalibrationDir);
+
     public string EffectiveDatabase => string.IsNullOrWhiteSpace(Database)
         ? "sqlite:" + Path.Combine(Path.GetFullPath(DataDir), "pulseladder.db")
         : Database;

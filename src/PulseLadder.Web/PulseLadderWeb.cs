@@ -28,10 +28,13 @@ public static class PulseLadderWeb
         if (!options.EffectiveDatabase.StartsWith("postgres:", StringComparison.OrdinalIgnoreCase))
             Directory.CreateDirectory(Path.GetFullPath(options.DataDir));
         var database = Database.FromSetting(options.EffectiveDatabase);
+        // Before anything touches the database: a bad administrator file stops start-up with file, line and field.
+        var calibrations = Calibrations.LoadFolderOrThrow(options.EffectiveCalibrationDir);
 
         builder.Services.AddSingleton(Options.Create(options));
         builder.Services.AddSingleton(database);
         builder.Services.AddSingleton(TimeProvider.System);
+        builder.Services.AddPulseLadderCalibrations(calibrations);
         builder.Services.AddPulseLadderJobs(jobs, database, isWorkerOnly: false);
         builder.Services.AddHostedService<StartupRecovery>();
         builder.Services.AddProblemDetails();
@@ -68,6 +71,9 @@ public static class PulseLadderWeb
 
         // The web host owns the schema: migrate before anything (hosted services, requests) touches the database.
         database.Migrate(app.Services.GetRequiredService<TimeProvider>());
+        Calibrations.RecordInUse(database, calibrations, options.EffectiveCalibrationDir, app.Services.GetRequiredService<TimeProvider>().GetUtcNow().ToString("O"));
+        app.Logger.LogInformation("Calibration registry {Hash} ({Count} relations; administrator files: {Files}) from {Folder}",
+            calibrations.Hash[..12], calibrations.Relations.Count, calibrations.UserFiles.Count == 0 ? "none" : string.Join(", ", calibrations.UserFiles), options.EffectiveCalibrationDir);
 
         app.UseExceptionHandler();
         app.Use(async (ctx, next) =>

@@ -23,6 +23,9 @@ public sealed class ReproduceCommand : Command<ReproduceCommand.Settings>
         [CommandOption("--database <SETTING>"), Description("sqlite:PATH or postgres:CONNECTION STRING (overrides --data-dir).")]
         public string? Database { get; init; }
 
+        [CommandOption("--calibration-dir <DIR>"), Description("Folder of administrator calibration files (default DATA-DIR/calibrations, as the service).")]
+        public string? CalibrationDir { get; init; }
+
         [CommandOption("--tolerance <REL>"), Description("Relative tolerance for numbers (default 0: exact; the pipeline is deterministic).")]
         public double Tolerance { get; init; }
     }
@@ -38,7 +41,16 @@ public sealed class ReproduceCommand : Command<ReproduceCommand.Settings>
         }
         var db = Database.FromSetting(setting);
         db.EnsureSchemaIsCurrent();
-        var r = Reproduction.Run(db, s.Star, s.Tolerance);
+        string calDir = !string.IsNullOrWhiteSpace(s.CalibrationDir) ? Path.GetFullPath(s.CalibrationDir)
+            : Jobs.Calibrations.DefaultFolder(s.DataDir ?? "pulseladder-data");
+        Core.Calibration.CalibrationRegistry registry;
+        try { registry = Jobs.Calibrations.LoadFolderOrThrow(calDir); }
+        catch (InvalidOperationException e)
+        {
+            Console.Error.WriteLine("pulseladder reproduce: " + e.Message);
+            return 2;
+        }
+        var r = Reproduction.Run(db, s.Star, s.Tolerance, registry);
         return Print(r, Console.Out);
     }
 

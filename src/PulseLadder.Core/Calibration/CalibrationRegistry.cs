@@ -1,5 +1,7 @@
 using System.Globalization;
 using System.Reflection;
+using System.Security.Cryptography;
+using System.Text;
 using PulseLadder.Core.Photometry;
 
 namespace PulseLadder.Core.Calibration;
@@ -21,8 +23,11 @@ public sealed class CalibrationRegistry
     private readonly Dictionary<string, PlRelation> _relations;
     private readonly Dictionary<string, CalibrationAnchor> _anchors;
 
-    private CalibrationRegistry(IEnumerable<PlRelation> relations, IEnumerable<CalibrationAnchor> anchors, IEnumerable<PeriodColourRelation> colours, IEnumerable<BandTransform> transforms)
+    private CalibrationRegistry(IEnumerable<PlRelation> relations, IEnumerable<CalibrationAnchor> anchors, IEnumerable<PeriodColourRelation> colours, IEnumerable<BandTransform> transforms,
+        string hash, IReadOnlyList<string> userFiles)
     {
+        Hash = hash;
+        UserFiles = userFiles;
         BandTransforms = transforms.ToList();
         _relations = relations.ToDictionary(r => r.Id, StringComparer.Ordinal);
         _anchors = anchors.ToDictionary(a => a.Id, StringComparer.Ordinal);
@@ -36,6 +41,15 @@ public sealed class CalibrationRegistry
     public static CalibrationRegistry Embedded => EmbeddedLazy.Value;
 
     public IReadOnlyList<PlRelation> Relations { get; }
+
+    /// <summary>
+    /// SHA-256 (lower-case hex) over the embedded tables' text and, in order, each administrator file's name and
+    /// text: two processes with the same hash use the same coefficients. Stored with every analysis.
+    /// </summary>
+    public string Hash { get; }
+
+    /// <summary>Names of the administrator files whose relations this registry holds, in load order.</summary>
+    public IReadOnlyList<string> UserFiles { get; }
     public IReadOnlyCollection<CalibrationAnchor> Anchors => _anchors.Values;
     public IReadOnlyList<PeriodColourRelation> PeriodColourRelations { get; }
     public IReadOnlyList<BandTransform> BandTransforms { get; }
@@ -49,13 +63,16 @@ public sealed class CalibrationRegistry
     public static CalibrationRegistry Load()
     {
         var errors = new List<CalibrationFileError>();
-        var anchors = ParseAnchors(ReadResource("anchors.csv"), errors);
-        var colours = ParsePeriodColour(ReadResource("period_colour.csv"), errors);
-        var transforms = ParseTransforms(ReadResource("band_transforms.csv"), errors);
-        var relations = ParseRelations(ReadResource("relations.csv"), anchors.ToDictionary(a => a.Id), [], errors);
+        string anchorText = ReadResource("anchors.csv"), colourText = ReadResource("period_colour.csv");
+        string transformText = ReadResource("band_transforms.csv"), relationText = ReadResource("relations.csv");
+        var anchors = ParseAnchors(anchorText, errors);
+        var colours = ParsePeriodColour(colourText, errors);
+        var transforms = ParseTransforms(transformText, errors);
+        var relations = ParseRelations(relationText, anchors.ToDictionary(a => a.Id), [], errors, null);
         if (errors.Count > 0)
             throw new InvalidOperationException("embedded calibration tables are invalid: " + string.Join("; ", errors));
-        return new CalibrationRegistry(relations, anchors, colours, transforms);
+        string hash = Sha256Hex("embedded", anchorText, colourText, transformText, relationText);
+        return new CalibrationRegistry(relations, anchors, colours, transforms, hash, []);
     }
 
     internal static string ReadResource(string name)
@@ -107,11 +124,36 @@ public sealed class CalibrationRegistry
     /// are left out and reported with line and column; an id already present is an error (ids are stable references
     /// stored with results). Anchors referenced must exist in this registry.
     /// </summary>
-    public CalibrationLoadResult WithUserRelations(string csvText)
+    public CalibrationLoadResult WithUserRelations(string csvText) => WithUserRelations(csvText, "");
+
+    /// <summary>
+    /// As <see cref="WithUserRelations(string)"/> for the text of the administrator file <paramref name="fileName"/>
+    /// (a name without folder): every error carries the file name, every added relation is marked user-supplied with
+    /// that file as its origin, and the file name and text enter <see cref="Hash"/>.
+    /// </summary>
+    public CalibrationLoadResult WithUserRelations(string csvText, string fileName)
     {
+        ArgumentNullException.ThrowIfNull(csvText);
+        ArgumentNullException.ThrowIfNull(fileName);
         var errors = new List<CalibrationFileError>();
-        var added = ParseRelations(csvText, _anchors, _relations.Keys.ToHashSet(StringComparer.Ordinal), errors);
-        return new CalibrationLoadResult(new CalibrationRegistry(Relations.Concat(added), _anchors.Values, PeriodColourRelations, BandTransforms), errors);
+        var added = ParseRelations(csvText, _anchors, _relations.Keys.ToHashSet(StringComparer.Ordinal), errors, fileName);
+        var tagged = errors.Select(e => e with { File = fileName }).ToList();
+        var files = fileName.Length == 0 ? UserFiles : UserFiles.Append(fileName).ToList();
+        var registry = new CalibrationRegistry(Relations.Concat(added), _anchors.Values, PeriodColourRelations, BandTransforms,
+            Sha256Hex(Hash, fileName, csvText), files);
+        return new CalibrationLoadResult(registry, tagged);
+    }
+
+    private static string Sha256Hex(params string[] parts)
+    {
+        using var h = IncrementalHash.CreateHash(HashAlgorithmName.SHA256);
+        foreach (var p in parts)
+        {
+            // Length-prefixed so that moving text between parts changes the hash.
+            h.AppendData(Encoding.UTF8.GetBytes(p.Length.ToString(CultureInfo.InvariantCulture) + ":"));
+            h.AppendData(Encoding.UTF8.GetBytes(p));
+        }
+        return Convert.ToHexString(h.GetHashAndReset()).ToLowerInvariant();
     }
 
     private static List<CalibrationAnchor> ParseAnchors(string text, List<CalibrationFileError> errors)
@@ -190,7 +232,7 @@ public sealed class CalibrationRegistry
         return list;
     }
 
-    private static List<PlRelation> ParseRelations(string text, IReadOnlyDictionary<string, CalibrationAnchor> anchors, HashSet<string> existingIds, List<CalibrationFileError> errors)
+    private static List<PlRelation> ParseRelations(string text, IReadOnlyDictionary<string, CalibrationAnchor> anchors, HashSet<string> existingIds, List<CalibrationFileError> errors, string? userFile)
     {
         var table = CsvTable.Parse(text, errors);
         var list = new List<PlRelation>();
@@ -287,6 +329,8 @@ public sealed class CalibrationRegistry
                 Table = row.Text("table", errors, required: false),
                 Tag = row.Text("tag", errors, required: false),
                 Notes = row.Text("notes", errors, required: false),
+                UserSupplied = userFile is not null,
+                UserFile = userFile is { Length: > 0 } ? userFile : null,
             };
             if (errors.Count == before) list.Add(rel);
         }

@@ -6,7 +6,14 @@ namespace PulseLadder.Core.Calibration;
 /// <summary>One problem found while reading a calibration file: 1-based line, column name (or "" for the line).</summary>
 public sealed record CalibrationFileError(int Line, string Field, string Message)
 {
-    public override string ToString() => Field.Length == 0 ? $"line {Line}: {Message}" : $"line {Line}, field '{Field}': {Message}";
+    /// <summary>File name (without folder) the error is in; "" for text given directly.</summary>
+    public string File { get; init; } = "";
+
+    public override string ToString()
+    {
+        var where = Field.Length == 0 ? $"line {Line}" : $"line {Line}, field '{Field}'";
+        return (File.Length == 0 ? "" : File + ", ") + where + ": " + Message;
+    }
 }
 
 /// <summary>

@@ -61,6 +61,10 @@ public sealed record PlRelation
     /// <summary>Provenance tag: C confirmed, M from memory, X derived.</summary>
     public string Tag { get; init; } = "";
     public string Notes { get; init; } = "";
+    /// <summary>True for a relation an administrator added (a file in the calibration folder), false for the embedded defaults.</summary>
+    public bool UserSupplied { get; init; }
+    /// <summary>Administrator file the relation came from (name without folder), or null.</summary>
+    public string? UserFile { get; init; }
 
     public bool IsWesenheit => Color1 is not null && Color2 is not null;
 

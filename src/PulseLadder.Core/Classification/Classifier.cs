@@ -11,11 +11,43 @@ public sealed record ClassSuggestion(PulsatorClass Class, double Confidence, IRe
 /// <summary>Another star of the same field, for the period-luminosity position (class as declared, reviewed or suggested).</summary>
 public sealed record FieldStar(string Name, PulsatorClass Class, double PeriodDays, string Band, double IntensityMeanMag);
 
-/// <summary>The other stars of a field (same distance and similar reddening), for the PL-plane test.</summary>
+/// <summary>
+/// The field's period-luminosity relation in one band, fitted to its fundamental-mode classical Cepheids:
+/// m = ZeroPoint + Slope log10 P (apparent intensity-mean magnitudes, days). Scatter is the robust (1.4826 MAD)
+/// width about the line, at least 0.05 mag; Count the stars kept after clipping, Rejected those clipped.
+/// SlopeSource: "fitted" (free slope), or the id of the registry relation whose slope was held fixed.
+/// </summary>
+public sealed record FieldPlLine(string Band, double ZeroPoint, double Slope, string SlopeSource, double Scatter, int Count, int Rejected);
+
+/// <summary>
+/// The other stars of a field (same distance and similar reddening), for the PL-plane test. Either the stars
+/// (<see cref="Stars"/>; the lines are fitted from them on use) or, as stored with an analysis so a rerun
+/// reproduces the class, the fitted lines themselves (<see cref="Lines"/>) with the hash of the star set.
+/// </summary>
 public sealed record FieldContext(IReadOnlyList<FieldStar> Stars)
 {
-    /// <summary>Fewest fundamental-mode Cepheids in one band for the PL position to be used.</summary>
+    /// <summary>
+    /// Fewest fundamental-mode Cepheids in one band, after clipping, for the PL position to be used: a median zero
+    /// point from 5 stars with the ~0.1-0.2 mag intrinsic width of optical and near-infrared PL relations is good to
+    /// ~0.1 mag, far below the 1.5-2.2 mag that separate Type II from classical Cepheids, and 5 is the fewest for
+    /// which the MAD scale still tolerates one contaminating star.
+    /// </summary>
     public const int MinStars = 5;
+
+    /// <summary>The fitted lines, when given directly (a stored context); null: fit them from <see cref="Stars"/>.</summary>
+    public IReadOnlyList<FieldPlLine>? Lines { get; init; }
+
+    /// <summary>SHA-256 over the star set the lines were fitted to (name, class, band, period, magnitude); "" when unknown.</summary>
+    public string StarSetHash { get; init; } = "";
+
+    /// <summary>Number of distinct stars in the set the lines were fitted to.</summary>
+    public int StarCount { get; init; }
+
+    /// <summary>The field's PL lines: <see cref="Lines"/> if set, else fitted from <see cref="Stars"/> (<see cref="FieldPl.Fit"/>).</summary>
+    public IReadOnlyList<FieldPlLine> PlLines() => Lines ?? FieldPl.Fit(Stars);
+
+    /// <summary>The context reduced to its fitted lines and star-set hash: what an analysis stores.</summary>
+    public FieldContext Compact() => new([]) { Lines = PlLines(), StarSetHash = StarSetHash.Length > 0 ? StarSetHash : FieldPl.HashOf(Stars), StarCount = StarCount > 0 ? StarCount : Stars.Select(s => s.Name).Distinct(StringComparer.Ordinal).Count() };
 }
 
 /// <summary>Stage "classify".</summary>
@@ -28,10 +60,12 @@ public static class Classifier
     /// Class of the star: the reviewer's choice wins (source "reviewer"), then the star list's declared class
     /// ("star_list"), else a rule-based suggestion ("suggested") from the period, the peak-to-peak amplitude and the
     /// Fourier parameters R21/phi21/R31 of the best band (I preferred, then V), each rule adding a reason a reviewer
-    /// can read. No PL-plane position is used (one star is classified at a time); Type II versus classical Cepheids
-    /// at the same period is therefore decided only for RV Tau-like double-wave curves, otherwise the suggestion is
-    /// a classical Cepheid with the Type II alternative stated and the confidence capped. Never throws; missing
-    /// inputs lower the confidence. See docs/light-curves.md for the thresholds and their origin.
+    /// can read. No PL-plane position is used here (the light-curve class); Type II versus classical Cepheids at the
+    /// same period is therefore decided only for RV Tau-like double-wave curves, otherwise the suggestion is a
+    /// classical Cepheid with the Type II alternative stated and the confidence capped. The field PL pass
+    /// (<see cref="Pipeline.FieldPass"/>) adds the PL position later through the overload taking a
+    /// <see cref="FieldContext"/>. Never throws; missing inputs lower the confidence. See docs/light-curves.md for the
+    /// thresholds and their origin.
     /// </summary>
     public static ClassSuggestion Classify(StarInfo star, PeriodEstimate? period, PeriodSearchResult? search, IReadOnlyList<BandFit> fits, PulsatorClass? reviewerClass)
         => Classify(star, period, search, fits, reviewerClass, null);
@@ -233,24 +267,8 @@ public static class Classifier
 
     private static (double Residual, double Scatter, int Count)? PlResidual(double P, BandFit band, FieldContext field)
     {
-        var stars = field.Stars.Where(s => s.Band == band.Band && s.Class == PulsatorClass.ClassicalCepheidFundamental
-                && s.PeriodDays > 0 && double.IsFinite(s.IntensityMeanMag)).ToList();
-        if (stars.Count < FieldContext.MinStars) return null;
-        // Slope: fitted when the field spans at least 0.5 dex in log P with >= 8 stars, else the LMC OGLE slopes
-        // (I -2.96, V -2.78; from memory, common practice) held fixed; zero point = median.
-        var lp = stars.Select(s => Math.Log10(s.PeriodDays)).ToArray();
-        var m = stars.Select(s => s.IntensityMeanMag).ToArray();
-        double slope = band.Band == "V" ? -2.78 : -2.96;
-        if (stars.Count >= 8 && lp.Max() - lp.Min() >= 0.5)
-        {
-            double mx = lp.Average(), my = m.Average(), sxy = 0, sxx = 0;
-            for (int i = 0; i < lp.Length; i++) { sxy += (lp[i] - mx) * (m[i] - my); sxx += (lp[i] - mx) * (lp[i] - mx); }
-            slope = sxy / sxx;
-        }
-        var res = lp.Select((x, i) => m[i] - slope * x).OrderBy(v => v).ToArray();
-        double zp = res[res.Length / 2];
-        var dev = res.Select(v => Math.Abs(v - zp)).OrderBy(v => v).ToArray();
-        double scatter = Math.Max(0.05, 1.4826 * dev[dev.Length / 2]);
-        return (band.IntensityMeanMag - (zp + slope * Math.Log10(P)), scatter, stars.Count);
+        var line = field.PlLines().FirstOrDefault(l => l.Band == band.Band);
+        if (line is null || line.Count < FieldContext.MinStars) return null;
+        return (band.IntensityMeanMag - (line.ZeroPoint + line.Slope * Math.Log10(P)), line.Scatter, line.Count);
     }
 }

@@ -1,3 +1,4 @@
+using PulseLadder.Core.Calibration;
 using PulseLadder.Core.Classification;
 using PulseLadder.Core.Cleaning;
 using PulseLadder.Core.Distances;
@@ -14,12 +15,20 @@ namespace PulseLadder.Core.Pipeline;
 /// </summary>
 public static class AnalysisPipeline
 {
-    public static StarAnalysis Run(StarInfo star, IReadOnlyList<Observation> observations, PipelineSettings settings, ReviewOverrides? overrides = null)
+    /// <summary>
+    /// Analyses one star. <paramref name="field"/>: the field's PL context for the class suggestion (null: light curve
+    /// only; the field pass adds it later, see <see cref="FieldPass"/>); <paramref name="registry"/>: the calibration
+    /// registry (null: the embedded defaults).
+    /// </summary>
+    public static StarAnalysis Run(StarInfo star, IReadOnlyList<Observation> observations, PipelineSettings settings, ReviewOverrides? overrides = null,
+        FieldContext? field = null, CalibrationRegistry? registry = null)
     {
         overrides ??= ReviewOverrides.None;
+        registry ??= CalibrationRegistry.Embedded;
         var result = new StarAnalysis
         {
             Star = star.Name, Field = star.Field, Settings = settings, Overrides = overrides, PointsIn = observations.Count,
+            CalibrationRegistryHash = registry.Hash,
         };
 
         var cleaned = Cleaner.RejectUnusable(observations, settings.Cleaning);
@@ -43,20 +52,18 @@ public static class AnalysisPipeline
         rejections.AddRange(fit.Clipped);
         result = result with { Rejections = rejections, ObserverOffsets = fit.Offsets };
 
-        var cls = Classifier.Classify(star, period, search, fit.Fits, overrides.Class);
-        result = result with { Class = cls };
-
-        var distance = DistanceEstimator.EstimateDistance(star, cls.Class, period.PeriodDays, period.PeriodErrDays, fit.Fits, settings.Distance);
-        return Finish(result with { Distance = distance }, "ok", star, fit.Kept.Count, period, fit.Fits, fit.Fits.SelectMany(f => f.Flags));
+        result = FieldPass.ClassifyAndMeasure(result with { Period = period, Search = search }, star, fit.Fits, field, registry);
+        return Finish(result, "ok", star, fit.Kept.Count, period, fit.Fits, fit.Fits.SelectMany(f => f.Flags));
     }
 
-    private static StarAnalysis Finish(StarAnalysis r, string outcome, StarInfo star, int used, PeriodEstimate? period, IReadOnlyList<BandFit> fits, IEnumerable<string> fitFlags)
+    internal static StarAnalysis Finish(StarAnalysis r, string outcome, StarInfo star, int used, PeriodEstimate? period, IReadOnlyList<BandFit> fits, IEnumerable<string> fitFlags)
     {
         var flags = new SortedSet<string>(StringComparer.Ordinal);
         foreach (var f in fitFlags) flags.Add(f);
         if (period?.PdmDisagrees == true) flags.Add("pdm_disagrees");
         if (r.Distance?.Flags is { } df) foreach (var f in df) flags.Add(f);
         if (r.Distance?.FailureReason is { } dr) flags.Add("no_distance:" + dr);
+        if (r.FieldContext is not null && r.LightCurveClass is { } lc && r.Class is { } c && lc.Class != c.Class) flags.Add("class_from_field_pl");
         if (outcome != "ok") flags.Add(outcome);
         return r with { Outcome = outcome, PointsUsed = used, Fits = fits, Flags = flags.ToList() };
     }

@@ -6,5 +6,5 @@ namespace PulseLadder.Core.Pipeline;
 /// </summary>
 public static class PipelineVersion
 {
-    public const string Current = "0.1.0";
+    public const string Current = "0.2.0";
 }

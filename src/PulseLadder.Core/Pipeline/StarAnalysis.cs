@@ -24,6 +24,19 @@ public sealed record StarAnalysis
     public IReadOnlyList<BandFit> Fits { get; init; } = [];
     public IReadOnlyList<ObserverOffset> ObserverOffsets { get; init; } = [];
     public ClassSuggestion? Class { get; init; }
+    /// <summary>
+    /// The class from this star's own light curve (period, amplitude, Fourier parameters; declared and reviewer classes
+    /// still win), before any field PL test: what the field pass builds the field's PL lines from. Equals
+    /// <see cref="Class"/> when no field context was used.
+    /// </summary>
+    public ClassSuggestion? LightCurveClass { get; init; }
+    /// <summary>
+    /// The field context (fitted PL lines and the hash of the star set) the class used, or null when none: stored so a
+    /// rerun with the same context reproduces the class (docs/light-curves.md, "Field PL pass").
+    /// </summary>
+    public FieldContext? FieldContext { get; init; }
+    /// <summary><see cref="PulseLadder.Core.Calibration.CalibrationRegistry.Hash"/> of the registry the distance used.</summary>
+    public string CalibrationRegistryHash { get; init; } = "";
     public DistanceResult? Distance { get; init; }
     /// <summary>Conditions a reviewer should look at (e.g. "pdm_disagrees", "poor_phase_coverage").</summary>
     public IReadOnlyList<string> Flags { get; init; } = [];

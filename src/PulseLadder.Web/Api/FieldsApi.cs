@@ -77,10 +77,10 @@ public static class FieldsApi
     }
 
     public static Results<Ok<FieldDto>, ProblemHttpResult, ValidationProblem> SetSettings(
-        Database db, PulseLadder.Jobs.IAnalysisQueue queue, TimeProvider clock, System.Security.Claims.ClaimsPrincipal user, long fieldId, FieldSettingsRequest body)
+        Database db, PulseLadder.Jobs.IAnalysisQueue queue, TimeProvider clock, System.Security.Claims.ClaimsPrincipal user, Core.Calibration.CalibrationRegistry registry, long fieldId, FieldSettingsRequest body)
     {
         var errors = new Dictionary<string, string[]>();
-        if (body.CalibrationId is { } id && !Core.Calibration.CalibrationRegistry.Embedded.TryGet(id, out _))
+        if (body.CalibrationId is { } id && !registry.TryGet(id, out _))
             errors["calibration_id"] = [$"unknown relation '{id}'; GET /api/v1/calibrations lists them"];
         if (body.DefaultEbv is { } e && (!double.IsFinite(e) || e < 0 || e > 10)) errors["default_ebv"] = ["must be between 0 and 10 mag"];
         if (errors.Count > 0) return TypedResults.ValidationProblem(errors);
@@ -102,10 +102,15 @@ public static class FieldsApi
         return TypedResults.Ok(List(db).Value!.Single(x => x.FieldId == fieldId));
     }
 
-    public static Ok<List<CalibrationDto>> Calibrations() =>
-        TypedResults.Ok(Core.Calibration.CalibrationRegistry.Embedded.Relations.Select(r => new CalibrationDto(
+    /// <summary>Every relation of this process's registry (embedded, then administrator files), with its source and origin.</summary>
+    public static Ok<List<CalibrationDto>> Calibrations(Core.Calibration.CalibrationRegistry registry, HttpResponse response)
+    {
+        // The registry hash lets a client check that the web host and the workers use the same coefficients.
+        response.Headers["X-Calibration-Registry"] = registry.Hash;
+        return TypedResults.Ok(registry.Relations.Select(r => new CalibrationDto(
             r.Id, r.Classes.Select(PulsatorClassesCode).ToList(), r.BandLabel, r.Source, r.Table, r.Tag, r.Notes,
-            Math.Pow(10, r.LogPMin), Math.Pow(10, r.LogPMax))).ToList());
+            Math.Pow(10, r.LogPMin), Math.Pow(10, r.LogPMax), r.UserSupplied, r.UserFile)).ToList());
+    }
 
     private static string PulsatorClassesCode(Core.Photometry.PulsatorClass c) => Core.Photometry.PulsatorClasses.ToCode(c);
 
@@ -115,7 +120,9 @@ public static class FieldsApi
 
 public sealed record FieldSettingsRequest(string? CalibrationId, double? DefaultEbv);
 
-public sealed record CalibrationDto(string Id, IReadOnlyList<string> Classes, string Band, string Source, string Table, string Tag, string Notes, double PeriodMinDays, double PeriodMaxDays);
+/// <param name="UserSupplied">True for a relation from an administrator file (<paramref name="File"/>), false for the embedded defaults.</param>
+public sealed record CalibrationDto(string Id, IReadOnlyList<string> Classes, string Band, string Source, string Table, string Tag, string Notes, double PeriodMinDays, double PeriodMaxDays,
+    bool UserSupplied, string? File);
 
 public sealed record FieldSummaryView(long FieldId, string Field, long NUsed, double? Mu, double? MuErr, string ComputedAt, System.Text.Json.JsonElement Detail);
 

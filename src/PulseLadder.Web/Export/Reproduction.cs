@@ -29,9 +29,12 @@ public sealed record ReproductionReport(
 /// </summary>
 public static class Reproduction
 {
-    public static ReproductionReport Run(Database db, string star, double relativeTolerance = 0)
+    /// <param name="registry">Calibration registry of the rerun (null: the embedded defaults); a hash other than the
+    /// stored analysis's is reported in the notes and, through the input hash, as a difference.</param>
+    public static ReproductionReport Run(Database db, string star, double relativeTolerance = 0, Core.Calibration.CalibrationRegistry? registry = null)
     {
         ArgumentNullException.ThrowIfNull(db);
+        registry ??= Core.Calibration.CalibrationRegistry.Embedded;
         using var c = db.Open();
         var s = StarStore.GetByName(c, star)
             ?? (long.TryParse(star, NumberStyles.None, CultureInfo.InvariantCulture, out var id) ? StarStore.Get(c, id) : null);
@@ -47,8 +50,14 @@ public static class Reproduction
         var info = StarStore.ToStarInfo(s);
         var settings = storedResult.Settings;
         var overrides = storedResult.Overrides;
-        var rerun = AnalysisPipeline.Run(info, observations, settings, overrides);
-        string hash = AnalyzeStarJob.InputHash(info, observations, settings, overrides);
+        // The field PL context the stored class used (fitted lines + star-set hash) is replayed, not refitted.
+        var field = storedResult.FieldContext;
+        if (field is not null)
+            notes.Add($"class used the field PL context of {field.StarCount} stars (star set {field.StarSetHash[..Math.Min(12, field.StarSetHash.Length)]}), replayed as stored");
+        if (storedResult.CalibrationRegistryHash.Length > 0 && storedResult.CalibrationRegistryHash != registry.Hash)
+            notes.Add($"the stored analysis used calibration registry {storedResult.CalibrationRegistryHash[..Math.Min(12, storedResult.CalibrationRegistryHash.Length)]}, the rerun uses {registry.Hash[..12]} (administrator files changed?)");
+        var rerun = AnalysisPipeline.Run(info, observations, settings, overrides, field, registry);
+        string hash = AnalyzeStarJob.InputHash(info, observations, settings, overrides, field, registry);
 
         var fresh = KeyNumbers(rerun);
         var diffs = new List<ReproductionDifference>();
