@@ -3,8 +3,9 @@ namespace PulseLadder.Core.Pipeline;
 /// <summary>
 /// Version of the analysis. A star with no result for the current version is pending and is (re)analysed.
 /// Bump it whenever a change alters numbers a stored result would hold.
+/// 0.1.1: vectorised harmonic least squares and spectral window (sums in another order: results move by rounding).
 /// </summary>
 public static class PipelineVersion
 {
-    public const string Current = "0.1.0";
+    public const string Current = "0.1.1";
 }
