@@ -265,7 +265,9 @@ public sealed class BenchThroughputCommand : Command<BenchThroughputCommand.Sett
 
     // ---- child processes -------------------------------------------------------------------------------------------
 
-    private static Process Start(string work, string logName, params string[] args)
+    private static Process Start(string work, string logName, params string[] args) => Start(work, logName, null, args);
+
+    private static Process Start(string work, string logName, IReadOnlyDictionary<string, string>? env, params string[] args)
     {
         var psi = new ProcessStartInfo(Environment.ProcessPath ?? "dotnet")
         {
@@ -273,6 +275,7 @@ public sealed class BenchThroughputCommand : Command<BenchThroughputCommand.Sett
         };
         if (Path.GetFileNameWithoutExtension(psi.FileName) == "dotnet") psi.ArgumentList.Add(typeof(BenchThroughputCommand).Assembly.Location);
         foreach (var a in args) psi.ArgumentList.Add(a);
+        if (env is not null) foreach (var (k, v) in env) psi.Environment[k] = v;
         var p = Process.Start(psi)!;
         var log = new StreamWriter(Path.Combine(work, logName)) { AutoFlush = true };
         p.OutputDataReceived += (_, e) => { if (e.Data is not null) lock (log) log.WriteLine(e.Data); };
@@ -407,9 +410,12 @@ public sealed class BenchThroughputCommand : Command<BenchThroughputCommand.Sett
         long bytes = new FileInfo(phot).Length;
         int port = FreePort();
         string url = F($"http://127.0.0.1:{port}");
-        var web = Start(work, "upload-web.log", "serve", "--urls", url, "--data-dir", Path.Combine(work, "upload"), "--no-jobs",
-            "--PulseLadder:MaxUploadBytes", (bytes + (64L << 20)).ToString(CultureInfo.InvariantCulture),
-            "--PulseLadder:MaxUploadRows", (rows + 10).ToString(CultureInfo.InvariantCulture));
+        var env = new Dictionary<string, string>
+        {
+            ["PulseLadder__MaxUploadBytes"] = (bytes + (64L << 20)).ToString(CultureInfo.InvariantCulture),
+            ["PulseLadder__MaxUploadRows"] = (rows + 10).ToString(CultureInfo.InvariantCulture),
+        };
+        var web = Start(work, "upload-web.log", env, "serve", "--urls", url, "--data-dir", Path.Combine(work, "upload"), "--no-jobs");
         try
         {
             using var http = new HttpClient { BaseAddress = new Uri(url), Timeout = TimeSpan.FromMinutes(60) };
