@@ -50,6 +50,7 @@ public static class JobsSetup
                 o.SchedulePollingInterval = TimeSpan.FromSeconds(1);
             });
         }
+        services.AddSingleton(options);
         services.AddSingleton<IAnalysisQueue, HangfireAnalysisQueue>();
         services.AddTransient<AnalyzeStarJob>();
         services.AddTransient<FieldSummaryJob>();

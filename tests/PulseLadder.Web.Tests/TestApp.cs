@@ -23,12 +23,13 @@ public sealed class TestApp : IAsyncDisposable
         Client = app.GetTestClient();
     }
 
-    public static async Task<TestApp> StartAsync(string? dataDir = null, bool runJobs = true, int workers = 2)
+    public static async Task<TestApp> StartAsync(string? dataDir = null, bool runJobs = true, int workers = 2, IEnumerable<string>? extraArgs = null)
     {
         dataDir ??= Path.Combine(Path.GetTempPath(), "plx-web-tests", Guid.NewGuid().ToString("N"));
         var app = PulseLadderWeb.Build(
             ["--PulseLadder:DataDir", dataDir, "--PulseLadder:Jobs:RunServer", runJobs ? "true" : "false",
-             "--PulseLadder:Jobs:Workers", workers.ToString(System.Globalization.CultureInfo.InvariantCulture), "--Logging:LogLevel:Default", "Warning"],
+             "--PulseLadder:Jobs:Workers", workers.ToString(System.Globalization.CultureInfo.InvariantCulture), "--Logging:LogLevel:Default", "Warning",
+             .. extraArgs ?? []],
             b => b.WebHost.UseTestServer());
         await app.StartAsync();
         return new TestApp(app, dataDir);

@@ -79,7 +79,7 @@ internal static class HarmonicFit
     /// Adds points [<paramref name="start"/>, Count) to the upper triangle of A^T W A and to A^T W y, magnitudes
     /// centred on the band's weighted mean; returns their sum w y^2. The definition the vector path must match.
     /// </summary>
-    private static double AccumulateScalar(BandSeries b, double f, int harmonics, int m, int p, int start, Span<double> ata, Span<double> aty, Span<double> row)
+    internal static double AccumulateScalar(BandSeries b, double f, int harmonics, int m, int p, int start, Span<double> ata, Span<double> aty, Span<double> row)
     {
         var t = b.T; var y = b.Y; var w = b.W; var o = b.Obs;
         // Magnitudes centred on the band's weighted mean: chi2 = sum w y^2 - x.(A^T W y) then keeps its digits
@@ -108,7 +108,7 @@ internal static class HarmonicFit
     /// point. Sums are added in a different order than the scalar path, so results agree to rounding (~1e-15
     /// relative), not bit for bit. The remainder (fewer than four points) goes through the scalar path.
     /// </summary>
-    private static double AccumulateVector(BandSeries b, double f, int harmonics, int m, int p, Span<double> ata, Span<double> aty)
+    internal static double AccumulateVector(BandSeries b, double f, int harmonics, int m, int p, Span<double> ata, Span<double> aty)
     {
         int q = 1 + 2 * harmonics, nTri = q * (q + 1) / 2, nObs = m - 1;
         int nAcc = nTri + q + 1 + nObs * (q + 1);

@@ -125,7 +125,7 @@ public static class UploadsApi
         }).ToList();
         string actor = Field("by") is { Length: > 0 } by ? by : "uploader";
         var outcome = UploadWriter.Store(db, starList, photometry, actor, clock);
-        foreach (var (starId, revision) in outcome.StarsToAnalyse) queue.EnqueueStar(starId, revision);
+        queue.EnqueueStars(outcome.StarsToAnalyse);
         var dup = outcome.DuplicateFiles.ToHashSet();
         reports = reports.Select(r => r with { Duplicate = dup.Contains(r.File) }).ToList();
         bool allDuplicate = reports.Count > 0 && reports.All(r => r.Duplicate);
