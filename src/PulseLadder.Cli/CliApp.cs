@@ -32,6 +32,7 @@ public static class CliApp
             c.AddCommand<UploadCommand>("upload").WithDescription("Upload a star list and photometry to a running server.");
             c.AddCommand<StatusCommand>("status").WithDescription("Show analysis progress of a running server.");
             c.AddCommand<ExportCommand>("export").WithDescription("Download a field's distance estimates (or a figure with --figure).");
+            c.AddCommand<BenchThroughputCommand>("bench-throughput").WithDescription("Measure end-to-end stars/s, queue cost per job, ingest rate and upload peak memory.");
             c.AddCommand<BenchPipelineCommand>("bench-pipeline").WithDescription("Measure the star pipeline per stage on the demo campaign.");
             c.AddCommand<ReproduceCommand>("reproduce").WithDescription("Rerun a star's stored analysis from the database and report any difference.");
             c.AddBranch("user", u =>

@@ -64,6 +64,19 @@ public sealed class AnalyzeStarJob(Database db, IAnalysisQueue queue, TimeProvid
         if (star.ReviewState == ReviewStates.Accepted || fieldDone) queue.EnqueueFieldSummary(star.FieldId);
     }
 
+    /// <summary>
+    /// Analyses several stars in one job (see <see cref="IAnalysisQueue.EnqueueStars"/>). Each star is still its own
+    /// unit: reloaded, analysed and stored in its own transaction, skipped when its result already exists, so a
+    /// retry or a second delivery of the batch (worker killed mid-batch) redoes only the stars without a result.
+    /// </summary>
+    [Queue("analysis")]
+    [AutomaticRetry(Attempts = 10, DelaysInSeconds = [5, 10, 20, 40, 60, 120, 300, 600, 900, 1800])]
+    public void RunBatch(long[] starIds, long[] revisions)
+    {
+        if (starIds.Length != revisions.Length) throw new ArgumentException("One revision per star is required.", nameof(revisions));
+        for (int i = 0; i < starIds.Length; i++) Run(starIds[i], revisions[i]);
+    }
+
     /// <summary>What the reviewer imposed on the star (chosen period, chosen class).</summary>
     public static ReviewOverrides OverridesFor(StarRow star) => new(
         star.ChosenPeriodDays,

@@ -51,6 +51,7 @@ public static class JobsSetup
                 o.SchedulePollingInterval = TimeSpan.FromSeconds(1);
             });
         }
+        services.AddSingleton(options);
         services.AddSingleton<IAnalysisQueue, HangfireAnalysisQueue>();
         // The embedded relations unless the host registered a registry with administrator files (Calibrations).
         services.TryAddSingleton(Core.Calibration.CalibrationRegistry.Embedded);

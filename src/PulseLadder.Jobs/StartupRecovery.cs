@@ -25,7 +25,7 @@ public sealed class StartupRecovery(Database db, IAnalysisQueue queue, ILogger<S
     {
         using var c = db.Open();
         var pending = StarStore.Pending(c, PipelineVersion.Current);
-        foreach (var (starId, revision) in pending) queue.EnqueueStar(starId, revision);
+        queue.EnqueueStars(pending);
         return pending.Count;
     }
 

@@ -7,7 +7,20 @@ namespace PulseLadder.Storage;
 public sealed record StarListFile(string FileName, string Sha256, IReadOnlyList<StarInfo> Stars);
 
 /// <summary>A validated photometry file with its declared time scale and offset.</summary>
-public sealed record PhotometryFile(string FileName, string Sha256, TimeScale Scale, double TimeOffset, IReadOnlyList<Core.Ingest.PhotometryRow> Rows);
+public sealed record PhotometryFile(string FileName, string Sha256, TimeScale Scale, double TimeOffset, IReadOnlyList<Core.Ingest.PhotometryRow> Rows)
+{
+    /// <summary>
+    /// Instead of <see cref="Rows"/>: pushes the validated rows in batches (e.g. a large upload re-read from its spool
+    /// file), so the store never holds them all; <see cref="RowCount"/> must then give their number.
+    /// </summary>
+    public Action<Core.Ingest.RowBatchHandler<Core.Ingest.PhotometryRow>>? StreamRows { get; init; }
+
+    /// <summary>Number of rows when they are streamed; null means Rows.Count.</summary>
+    public long? RowCount { get; init; }
+
+    /// <summary>Rows this file stores.</summary>
+    public long Count => RowCount ?? Rows.Count;
+}
 
 /// <summary>What an upload stored.</summary>
 public sealed record UploadOutcome(long BatchId, int StarsAdded, int StarsChanged, long ObservationsAdded,
@@ -60,18 +73,35 @@ public static class UploadWriter
             long uploadId = UploadStore.Insert(c, tx, new UploadRow
             {
                 Kind = "photometry", FileName = f.FileName, Sha256 = f.Sha256, TimeScale = f.Scale.ToCode(), TimeOffset = f.TimeOffset,
-                Rows = f.Rows.Count, UploadedBy = actor, UploadedAt = now, BatchId = batch,
+                Rows = f.Count, UploadedBy = actor, UploadedAt = now, BatchId = batch,
             });
             var starIds = new HashSet<long>();
-            ObservationStore.BulkInsert(c, tx, uploadId, f.Rows.Select(r =>
+            long stored = 0;
+            using (var inserter = ObservationStore.BeginBulkInsert(c, tx, uploadId))
             {
-                // The caller validated star names against the star list; a miss here is a bug.
-                long sid = ids.TryGetValue(r.Star, out var v) ? v : throw new InvalidOperationException($"Star '{r.Star}' is not in the star list.");
-                starIds.Add(sid);
-                var o = r.Observation;
-                return new ObservationToStore(sid, checked((int)r.Line), o.Time, o.Scale, o.Band, o.Mag, o.MagErr, o.Observer, o.Flag);
-            }));
-            observations += f.Rows.Count;
+                string? lastStar = null;
+                long lastId = 0;
+                void Add(in Core.Ingest.PhotometryRow r)
+                {
+                    // Files are usually grouped by star: skip the lookups while the star repeats.
+                    if (!ReferenceEquals(r.Star, lastStar) && r.Star != lastStar)
+                    {
+                        // The caller validated star names against the star list; a miss here is a bug.
+                        lastId = ids.TryGetValue(r.Star, out var v) ? v : throw new InvalidOperationException($"Star '{r.Star}' is not in the star list.");
+                        lastStar = r.Star;
+                        starIds.Add(lastId);
+                    }
+                    var o = r.Observation;
+                    inserter.Add(new ObservationToStore(lastId, checked((int)r.Line), o.Time, o.Scale, o.Band, o.Mag, o.MagErr, o.Observer, o.Flag));
+                    stored++;
+                }
+                if (f.StreamRows is { } stream) stream(batchRows => { foreach (ref readonly var r in batchRows) Add(r); });
+                else foreach (var r in f.Rows) Add(r);
+                inserter.Complete();
+            }
+            // A streamed file is parsed a second time here; it must give exactly the rows validated before.
+            if (stored != f.Count) throw new InvalidOperationException($"File '{f.FileName}': {stored} rows stored, {f.Count} validated.");
+            observations += stored;
             // New photometry makes the star's current result stale.
             StarStore.BumpRevision(c, tx, starIds.Where(s => !touched.Contains(s)));
             touched.UnionWith(starIds);

@@ -6,6 +6,15 @@ namespace PulseLadder.Web;
 /// <summary>A file as received: name and bytes.</summary>
 public sealed record IncomingFile(string FileName, byte[] Content);
 
+/// <summary>A file of a streamed upload, spooled to disk while its SHA-256 was computed.</summary>
+public sealed record SpooledFile(string FileName, string Path, string Sha256, long Length);
+
+/// <summary>
+/// Outcome of reading a spooled photometry file without keeping its rows: errors and counts, the first rows for the
+/// preview, and what is needed to read it again for storing.
+/// </summary>
+public sealed record ValidatedPhotometry(SpooledFile File, string Format, IReadOnlyList<string> Columns, IngestSummary Summary, IReadOnlyList<PhotometryRow> Preview);
+
 /// <summary>Parsed photometry of one file, or its errors.</summary>
 public sealed record ParsedPhotometry(string FileName, string Sha256, string Format, IReadOnlyList<string> Columns, ParseResult<PhotometryRow> Result);
 
@@ -16,9 +25,12 @@ public static class UploadParsing
     /// "csv" when the first data line has letters (a header), "plain" for three numeric columns. Never guesses the
     /// time scale: that is always declared.
     /// </summary>
-    public static string DetectFormat(byte[] content)
+    public static string DetectFormat(byte[] content) => DetectFormat(new MemoryStream(content));
+
+    /// <summary>Same as <see cref="DetectFormat(byte[])"/> on the start of a stream (read from its current position; left open).</summary>
+    public static string DetectFormat(Stream content)
     {
-        using var r = new StreamReader(new MemoryStream(content), detectEncodingFromByteOrderMarks: true);
+        using var r = new StreamReader(content, detectEncodingFromByteOrderMarks: true, leaveOpen: true);
         for (int i = 0; i < 1000 && r.ReadLine() is { } line; i++)
         {
             var t = line.Trim();
@@ -30,9 +42,12 @@ public static class UploadParsing
         return "csv";
     }
 
-    public static IReadOnlyList<string> HeaderColumns(byte[] content)
+    public static IReadOnlyList<string> HeaderColumns(byte[] content) => HeaderColumns(new MemoryStream(content));
+
+    /// <summary>Column names of the first non-comment line of a stream (read from its current position; left open).</summary>
+    public static IReadOnlyList<string> HeaderColumns(Stream content)
     {
-        using var r = new StreamReader(new MemoryStream(content), detectEncodingFromByteOrderMarks: true);
+        using var r = new StreamReader(content, detectEncodingFromByteOrderMarks: true, leaveOpen: true);
         for (int i = 0; i < 1000 && r.ReadLine() is { } line; i++)
         {
             var t = line.Trim();
@@ -46,12 +61,7 @@ public static class UploadParsing
         string? star, string? band, string? observer, int maxRows)
     {
         string format = DetectFormat(f.Content);
-        var options = new PhotometryParseOptions(scale, offset)
-        {
-            KnownStars = knownStars,
-            DefaultObserver = observer?.Trim() ?? "",
-            Limits = IngestLimits.Default with { MaxRows = maxRows },
-        };
+        var options = Options(scale, offset, knownStars, observer, maxRows);
         using var stream = new MemoryStream(f.Content);
         var result = format == "plain"
             ? PlainTextPhotometry.Parse(stream, f.FileName, star ?? "", band ?? "", options)
@@ -60,9 +70,142 @@ public static class UploadParsing
         return new ParsedPhotometry(f.FileName, ContentHash.Sha256Hex(f.Content), format, columns, result);
     }
 
+    private static PhotometryParseOptions Options(TimeScale scale, double offset, IReadOnlySet<string>? knownStars, string? observer, int maxRows) =>
+        new(scale, offset)
+        {
+            KnownStars = knownStars,
+            DefaultObserver = observer?.Trim() ?? "",
+            Limits = IngestLimits.Default with { MaxRows = maxRows },
+        };
+
+    /// <summary>
+    /// Reads a spooled photometry file with the same checks as <see cref="ReadPhotometry"/> but keeps only the first
+    /// <paramref name="previewRows"/> accepted rows: memory does not grow with the file (apart from the parser's
+    /// duplicate index, 16 bytes per row).
+    /// </summary>
+    public static ValidatedPhotometry ValidatePhotometry(SpooledFile f, TimeScale scale, double offset, IReadOnlySet<string>? knownStars,
+        string? star, string? band, string? observer, int maxRows, int previewRows = 10)
+    {
+        string format;
+        IReadOnlyList<string> columns;
+        using (var head = File.OpenRead(f.Path))
+        {
+            format = DetectFormat(head);
+            head.Position = 0;
+            columns = format == "plain" ? ["time", "mag", "mag_err"] : HeaderColumns(head);
+        }
+        var preview = new List<PhotometryRow>(previewRows);
+        var summary = Stream(f, format, scale, offset, knownStars, star, band, observer, maxRows, batch =>
+        {
+            for (int i = 0; i < batch.Length && preview.Count < previewRows; i++) preview.Add(batch[i]);
+        });
+        return new ValidatedPhotometry(f, format, columns, summary, preview);
+    }
+
+    /// <summary>Reads a validated spooled file again, pushing its accepted rows in batches (for storing).</summary>
+    public static IngestSummary StreamPhotometry(ValidatedPhotometry v, TimeScale scale, double offset, IReadOnlySet<string>? knownStars,
+        string? star, string? band, string? observer, int maxRows, RowBatchHandler<PhotometryRow> onBatch)
+        => Stream(v.File, v.Format, scale, offset, knownStars, star, band, observer, maxRows, onBatch);
+
+    private static IngestSummary Stream(SpooledFile f, string format, TimeScale scale, double offset, IReadOnlySet<string>? knownStars,
+        string? star, string? band, string? observer, int maxRows, RowBatchHandler<PhotometryRow> onBatch)
+    {
+        var options = Options(scale, offset, knownStars, observer, maxRows);
+        using var stream = new FileStream(f.Path, FileMode.Open, FileAccess.Read, FileShare.Read, 1 << 16, FileOptions.SequentialScan);
+        return format == "plain"
+            ? PlainTextPhotometry.Parse(stream, f.FileName, star ?? "", band ?? "", options, onBatch)
+            : PhotometryCsv.Parse(stream, f.FileName, options, onBatch);
+    }
+
     public static (string Sha256, ParseResult<StarInfo> Result) ReadStars(IncomingFile f)
     {
         using var stream = new MemoryStream(f.Content);
         return (ContentHash.Sha256Hex(f.Content), StarListCsv.Parse(stream, f.FileName));
+    }
+
+    /// <summary>Reads a spooled star list (star lists are small: their rows are kept).</summary>
+    public static ParseResult<StarInfo> ReadStars(SpooledFile f)
+    {
+        using var stream = File.OpenRead(f.Path);
+        return StarListCsv.Parse(stream, f.FileName);
+    }
+}
+
+/// <summary>
+/// The files of one streamed multipart upload, spooled to a private temporary folder (deleted on dispose), each with
+/// its SHA-256 computed while it was written. Small form fields are kept as text.
+/// </summary>
+public sealed class UploadSpool : IDisposable
+{
+    /// <summary>Longest form field value read (a field is a short parameter such as time_scale).</summary>
+    public const int MaxFieldLength = 64 * 1024;
+
+    private readonly string _dir = Path.Combine(Path.GetTempPath(), "pulseladder-upload-" + Guid.NewGuid().ToString("N"));
+    private readonly List<(string Name, SpooledFile File)> _files = [];
+
+    /// <summary>Spooled files in the order received, with their form field names.</summary>
+    public IReadOnlyList<(string Name, SpooledFile File)> Files => _files;
+
+    /// <summary>
+    /// Reads every section of the multipart <paramref name="body"/>: files to disk, fields into <paramref name="fields"/>
+    /// (first value wins). Returns a message naming the limit when more than <paramref name="maxBytes"/> bytes of
+    /// files arrive, else null. Malformed multipart data throws <see cref="InvalidDataException"/>.
+    /// </summary>
+    public async Task<string?> ReadAsync(Stream body, string boundary, Dictionary<string, string> fields, long maxBytes, CancellationToken ct)
+    {
+        var reader = new Microsoft.AspNetCore.WebUtilities.MultipartReader(boundary, body);
+        long total = 0;
+        byte[] buffer = System.Buffers.ArrayPool<byte>.Shared.Rent(1 << 16);
+        try
+        {
+            while (await reader.ReadNextSectionAsync(ct) is { } section)
+            {
+                if (!Microsoft.Net.Http.Headers.ContentDispositionHeaderValue.TryParse(section.ContentDisposition, out var cd)) continue;
+                string name = Microsoft.Net.Http.Headers.HeaderUtilities.RemoveQuotes(cd.Name).Value ?? "";
+                bool isFile = !Microsoft.Extensions.Primitives.StringSegment.IsNullOrEmpty(cd.FileName)
+                    || !Microsoft.Extensions.Primitives.StringSegment.IsNullOrEmpty(cd.FileNameStar);
+                if (!isFile)
+                {
+                    using var sr = new StreamReader(section.Body, System.Text.Encoding.UTF8, true, 4096, leaveOpen: true);
+                    var chars = new char[MaxFieldLength];
+                    int n = await sr.ReadBlockAsync(chars.AsMemory(), ct);
+                    fields.TryAdd(name, new string(chars, 0, n));
+                    continue;
+                }
+                Directory.CreateDirectory(_dir);
+                string raw = Microsoft.Net.Http.Headers.HeaderUtilities.RemoveQuotes(
+                    Microsoft.Extensions.Primitives.StringSegment.IsNullOrEmpty(cd.FileNameStar) ? cd.FileName : cd.FileNameStar).Value ?? "";
+                string fileName = Path.GetFileName(raw);
+                string path = Path.Combine(_dir, _files.Count.ToString(System.Globalization.CultureInfo.InvariantCulture));
+                using var hash = System.Security.Cryptography.IncrementalHash.CreateHash(System.Security.Cryptography.HashAlgorithmName.SHA256);
+                long length = 0;
+                await using (var fs = new FileStream(path, FileMode.CreateNew, FileAccess.Write, FileShare.None, 1 << 16, FileOptions.Asynchronous))
+                {
+                    int read;
+                    while ((read = await section.Body.ReadAsync(buffer, ct)) > 0)
+                    {
+                        total += read;
+                        length += read;
+                        if (total > maxBytes)
+                            return $"The upload is larger than {maxBytes} bytes (setting 'PulseLadder:MaxUploadBytes'); nothing was stored.";
+                        hash.AppendData(buffer, 0, read);
+                        await fs.WriteAsync(buffer.AsMemory(0, read), ct);
+                    }
+                }
+                _files.Add((name, new SpooledFile(fileName, path, Convert.ToHexString(hash.GetHashAndReset()).ToLowerInvariant(), length)));
+            }
+            return null;
+        }
+        finally
+        {
+            System.Buffers.ArrayPool<byte>.Shared.Return(buffer);
+        }
+    }
+
+    public void Dispose()
+    {
+        try { if (Directory.Exists(_dir)) Directory.Delete(_dir, true); }
+        catch (IOException) { }
+        catch (UnauthorizedAccessException) { }
     }
 }

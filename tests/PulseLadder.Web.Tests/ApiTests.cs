@@ -60,6 +60,33 @@ public sealed class ApiTests
     }
 
     [Fact]
+    public async Task Upload_IsRefusedWith413NamingTheSetting_WhenRowsExceedMaxUploadRows()
+    {
+        await using var t = await TestApp.StartAsync(runJobs: false, settings: ["--PulseLadder:MaxUploadRows", "5"]);
+        var resp = await t.Client.PostAsync("/api/v1/uploads", Fixtures.Form(Fixtures.StarList, [("a.csv", Fixtures.Photometry("T-CEP-1", 5.37, 13.9, nights: 10))]));
+        Assert.Equal(HttpStatusCode.RequestEntityTooLarge, resp.StatusCode);
+        var body = await Json(resp);
+        Assert.Equal(413, body.GetProperty("status").GetInt32());
+        Assert.Contains("PulseLadder:MaxUploadRows", body.GetProperty("detail").GetString());
+        using var c = t.Db.Open();
+        Assert.Equal(0, ObservationStore.Count(c));
+    }
+
+    [Fact]
+    public async Task Upload_IsRefusedWith413NamingTheSetting_WhenTheBodyExceedsMaxUploadBytes()
+    {
+        await using var t = await TestApp.StartAsync(runJobs: false, settings: ["--PulseLadder:MaxUploadBytes", "2048"]);
+        var phot = Fixtures.Photometry("T-CEP-1", 5.37, 13.9);
+        Assert.True(phot.Length > 2 * 2048, $"fixture of {phot.Length} bytes is not above the limit");
+        var resp = await t.Client.PostAsync("/api/v1/uploads", Fixtures.Form(Fixtures.StarList, [("a.csv", phot)]));
+        Assert.Equal(HttpStatusCode.RequestEntityTooLarge, resp.StatusCode);
+        var body = await Json(resp);
+        Assert.Contains("PulseLadder:MaxUploadBytes", body.GetProperty("detail").GetString());
+        using var c = t.Db.Open();
+        Assert.Empty(StarStore.IdsByName(c));
+    }
+
+    [Fact]
     public async Task Upload_AddsNothing_WhenIdenticalContentIsSentAgain()
     {
         await using var t = await TestApp.StartAsync(runJobs: false);

@@ -25,19 +25,36 @@ internal static class PeriodSearchEngine
     public static PeriodSearchResult Search(IReadOnlyList<LightCurvePoint> points, PulsatorClass cls, PeriodSearchSettings s)
     {
         var data = SearchData.Prepare(points);
-        var first = SearchOnce(data, cls, s);
-        if (first.Peaks.Count == 0 || first.ObserverOffsets.Count == 0 || !OffsetsMatter(data, first.ObserverOffsets)) return first;
+        var (first, firstPlot) = SearchOnce(data, cls, s);
+        if (first.Peaks.Count == 0 || first.ObserverOffsets.Count == 0 || !OffsetsMatter(data, first.ObserverOffsets))
+            return WithWindow(first, firstPlot, data);
 
         // The coarse grid ran on raw magnitudes; observer zero points blur it. Search again with them removed.
         var corrected = data.WithOffsetsRemoved(first.ObserverOffsets);
-        var second = SearchOnce(corrected, cls, s);
-        if (second.Peaks.Count == 0) return first;
+        var (second, secondPlot) = SearchOnce(corrected, cls, s);
+        if (second.Peaks.Count == 0) return WithWindow(first, firstPlot, data);
         var total = second.ObserverOffsets.Select(o =>
         {
             double o1 = first.ObserverOffsets.FirstOrDefault(x => x.Band == o.Band && x.Observer == o.Observer)?.Offset ?? 0;
             return o with { Offset = o.Offset + o1 };
         }).ToArray();
-        return second with { ObserverOffsets = total, Notes = [.. second.Notes, "offsets_removed_second_pass"] };
+        return WithWindow(second, secondPlot, corrected) with { ObserverOffsets = total, Notes = [.. second.Notes, "offsets_removed_second_pass"] };
+    }
+
+    /// <summary>Plotted frequencies of one pass: grid indices of the thinned periodogram, for the spectral window.</summary>
+    private readonly record struct PlotIndices(FrequencyGrid Grid, int[] Indices);
+
+    /// <summary>
+    /// Adds the spectral window on the plotted frequencies. Done once, for the pass that is returned (the window
+    /// depends only on the times, which both passes share): it costs about as much as the harmonic ranking.
+    /// </summary>
+    private static PeriodSearchResult WithWindow(PeriodSearchResult r, PlotIndices? plot, SearchData data)
+    {
+        if (plot is not { } p || r.FailureReason is "too_few_points" or "baseline_too_short") return r;
+        if (r.Periodogram.X.Length == 0) return r;
+        var wy = new double[p.Indices.Length];
+        SpectralTools.WindowOnGrid(data.AllT, p.Grid.F0, p.Grid.Df, p.Indices, wy);
+        return r with { Window = new Curve(r.Periodogram.X, wy) };
     }
 
     private static bool OffsetsMatter(SearchData data, IReadOnlyList<ObserverOffset> offsets)
@@ -57,7 +74,7 @@ internal static class PeriodSearchEngine
         return false;
     }
 
-    private static PeriodSearchResult SearchOnce(SearchData data, PulsatorClass cls, PeriodSearchSettings s)
+    private static (PeriodSearchResult Result, PlotIndices? Plot) SearchOnce(SearchData data, PulsatorClass cls, PeriodSearchSettings s)
     {
         var result = new PeriodSearchResult
         {
@@ -65,8 +82,8 @@ internal static class PeriodSearchEngine
             Bands = data.Bands.Select(b => b.Band).ToArray(), SkippedBands = data.SkippedBands,
             Method = MethodName(data, 0),
         };
-        if (data.Count < PeriodFinder.MinPoints) return result with { FailureReason = "too_few_points" };
-        if (FrequencyGrid.Build(data.Baseline, cls, s) is not { } grid) return result with { FailureReason = "baseline_too_short" };
+        if (data.Count < PeriodFinder.MinPoints) return (result with { FailureReason = "too_few_points" }, null);
+        if (FrequencyGrid.Build(data.Baseline, cls, s) is not { } grid) return (result with { FailureReason = "baseline_too_short" }, null);
         int harmonics = Math.Clamp(s.RankingHarmonics ?? DefaultHarmonics(cls), 1, 8);
         result = result with
         {
@@ -79,12 +96,12 @@ internal static class PeriodSearchEngine
 
         double chi0 = data.Bands.Sum(b => b.Chi2Mean);
         if (!(chi0 > 0) || !double.IsFinite(chi0))
-            return result with { FailureReason = "no_significant_period", Notes = [.. notes, "no_variance"] };
+            return (result with { FailureReason = "no_significant_period", Notes = [.. notes, "no_variance"] }, null);
 
         var power = CombinedPower(data, grid);
         var candidates = DistinctPeaks(power, grid, 1.0 / data.Baseline, Math.Max(s.Candidates, s.TopPeaks));
         if (candidates.Count == 0)
-            return result with { FailureReason = "no_significant_period", Notes = [.. notes, "no_peak"], Periodogram = Thinned(power, grid, SpectralTools.Thin(power)) };
+            return (result with { FailureReason = "no_significant_period", Notes = [.. notes, "no_peak"], Periodogram = Thinned(power, grid, SpectralTools.Thin(power)) }, null);
 
         // Refine each candidate on the combined GLS: the grid step is 1/(n0 T), the peak is known to a small fraction of it.
         var refined = new List<Candidate>(candidates.Count);
@@ -167,8 +184,6 @@ internal static class PeriodSearchEngine
 
         var plotIdx = SpectralTools.Thin(power);
         var plot = Thinned(power, grid, plotIdx);
-        var wy = new double[plot.X.Length];
-        SpectralTools.WindowOnGrid(data.AllT, grid.F0, grid.Df, plotIdx, wy);
 
         // Detection asks whether any listed peak is significant; which of them is the period is the ranking's job
         // (a preferred double period has little single-sinusoid power of its own).
@@ -188,18 +203,17 @@ internal static class PeriodSearchEngine
             }
             modelFap = FalseAlarm.Model(Math.Clamp(1 - bestChi2 / chiRef, 0, 1), data.Count, free, total, orders.Max(), grid.FMax, data.Baseline);
         }
-        return result with
+        return (result with
         {
             FailureReason = bestFap > s.MaxFalseAlarmProbability || modelFap > s.MaxFalseAlarmProbability ? "no_significant_period" : null,
             ModelFap = modelFap,
             Peaks = peaks,
             Periodogram = plot,
-            Window = new Curve(plot.X, wy),
             ObserverOffsets = offsets,
             BootstrapFap = bootFap,
             BootstrapSamples = Math.Max(0, s.BootstrapSamples),
             Notes = notes,
-        };
+        }, new PlotIndices(grid, plotIdx));
     }
 
     /// <summary>
@@ -331,9 +345,14 @@ internal static class PeriodSearchEngine
         var maxima = new List<int>();
         for (int k = 1; k < p.Length - 1; k++)
             if (p[k] > p[k - 1] && p[k] >= p[k + 1] && p[k] > 0) maxima.Add(k);
-        maxima.Sort((a, b) => p[b].CompareTo(p[a]));
+        // Sort by descending power through a key array: a comparison delegate over thousands of maxima cost more
+        // than the rest of this method.
+        var idx = maxima.ToArray();
+        var keys = new double[idx.Length];
+        for (int i = 0; i < idx.Length; i++) keys[i] = -p[idx[i]];
+        Array.Sort(keys, idx);
         var kept = new List<int>();
-        foreach (int k in maxima)
+        foreach (int k in idx)
         {
             double f = grid.At(k);
             bool distinct = true;

@@ -66,6 +66,7 @@ internal static class SpectralTools
         var re = new double[n]; var im = new double[n];
         for (int j = 0; j < m; j++)
         {
+            double a, b;
             if (j % 128 == 0)
             {
                 double w = 2 * Math.PI * (f0 + indices[j] * df);
@@ -74,23 +75,36 @@ internal static class SpectralTools
                     (double s, double c) = Math.SinCos(w * t[i]);
                     re[i] = c; im[i] = -s;
                 }
+                (a, b) = (Sum(re), Sum(im));
             }
             else
             {
                 int g = indices[j] - indices[j - 1];
-                Rotate(re, im, pr.AsSpan((g - 1) * n, n), pi.AsSpan((g - 1) * n, n));
+                (a, b) = RotateAndSum(re, im, pr.AsSpan((g - 1) * n, n), pi.AsSpan((g - 1) * n, n));
             }
-            double a = 0, b = 0;
-            for (int i = 0; i < n; i++) { a += re[i]; b += im[i]; }
             a /= n; b /= n;
             result[j] = a * a + b * b;
         }
     }
 
-    /// <summary>(re, im) *= (sr, si) elementwise; System.Numerics vectors where the CPU has them.</summary>
-    private static void Rotate(Span<double> re, Span<double> im, ReadOnlySpan<double> sr, ReadOnlySpan<double> si)
+    private static double Sum(ReadOnlySpan<double> x)
+    {
+        var acc = System.Numerics.Vector<double>.Zero;
+        var vx = System.Runtime.InteropServices.MemoryMarshal.Cast<double, System.Numerics.Vector<double>>(x);
+        foreach (var v in vx) acc += v;
+        double s = System.Numerics.Vector.Sum(acc);
+        for (int i = vx.Length * System.Numerics.Vector<double>.Count; i < x.Length; i++) s += x[i];
+        return s;
+    }
+
+    /// <summary>
+    /// (re, im) *= (sr, si) elementwise, returning the sums of the new re and im; System.Numerics vectors where the
+    /// CPU has them (the sums in vector lanes: a scalar running sum would be a latency chain as long as the data).
+    /// </summary>
+    private static (double Re, double Im) RotateAndSum(Span<double> re, Span<double> im, ReadOnlySpan<double> sr, ReadOnlySpan<double> si)
     {
         int n = re.Length, i = 0;
+        double sumRe = 0, sumIm = 0;
         if (System.Numerics.Vector.IsHardwareAccelerated)
         {
             int width = System.Numerics.Vector<double>.Count;
@@ -98,12 +112,18 @@ internal static class SpectralTools
             var vim = System.Runtime.InteropServices.MemoryMarshal.Cast<double, System.Numerics.Vector<double>>(im);
             var vsr = System.Runtime.InteropServices.MemoryMarshal.Cast<double, System.Numerics.Vector<double>>(sr);
             var vsi = System.Runtime.InteropServices.MemoryMarshal.Cast<double, System.Numerics.Vector<double>>(si);
+            var accRe = System.Numerics.Vector<double>.Zero;
+            var accIm = System.Numerics.Vector<double>.Zero;
             for (int v = 0; v < vre.Length; v++)
             {
                 var r0 = vre[v];
-                vre[v] = r0 * vsr[v] - vim[v] * vsi[v];
-                vim[v] = r0 * vsi[v] + vim[v] * vsr[v];
+                var r1 = r0 * vsr[v] - vim[v] * vsi[v];
+                var i1 = r0 * vsi[v] + vim[v] * vsr[v];
+                vre[v] = r1; vim[v] = i1;
+                accRe += r1; accIm += i1;
             }
+            sumRe = System.Numerics.Vector.Sum(accRe);
+            sumIm = System.Numerics.Vector.Sum(accIm);
             i = vre.Length * width;
         }
         for (; i < n; i++)
@@ -111,7 +131,9 @@ internal static class SpectralTools
             double r0 = re[i];
             re[i] = r0 * sr[i] - im[i] * si[i];
             im[i] = r0 * si[i] + im[i] * sr[i];
+            sumRe += re[i]; sumIm += im[i];
         }
+        return (sumRe, sumIm);
     }
 
     /// <summary>

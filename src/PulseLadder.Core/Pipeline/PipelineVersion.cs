@@ -3,8 +3,11 @@ namespace PulseLadder.Core.Pipeline;
 /// <summary>
 /// Version of the analysis. A star with no result for the current version is pending and is (re)analysed.
 /// Bump it whenever a change alters numbers a stored result would hold.
+/// 0.1.1: vectorised harmonic least squares and spectral window (sums in another order: results move by rounding).
+/// 0.2.0: calibration registry in the input hash; field PL class pass recorded with the result.
+/// 0.2.1: both of the above together.
 /// </summary>
 public static class PipelineVersion
 {
-    public const string Current = "0.2.0";
+    public const string Current = "0.2.1";
 }
