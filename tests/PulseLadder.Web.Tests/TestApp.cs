@@ -108,6 +108,25 @@ public sealed class TestApp : IAsyncDisposable
         }
     }
 
+    /// <summary>
+    /// Waits until the job server has nothing enqueued, scheduled or processing (follow-up jobs such as the field pass
+    /// included), seen on three polls in a row; returns false on timeout.
+    /// </summary>
+    public async Task<bool> WaitForJobsIdleAsync(TimeSpan timeout)
+    {
+        var end = DateTime.UtcNow + timeout;
+        var monitor = App.Services.GetRequiredService<Hangfire.JobStorage>().GetMonitoringApi();
+        int quiet = 0;
+        while (DateTime.UtcNow < end)
+        {
+            var stats = monitor.GetStatistics();
+            quiet = stats.Enqueued + stats.Processing + stats.Scheduled == 0 ? quiet + 1 : 0;
+            if (quiet >= 3) return true;
+            await Task.Delay(200);
+        }
+        return false;
+    }
+
     public async ValueTask DisposeAsync()
     {
         foreach (var c in _clients) c.Dispose();

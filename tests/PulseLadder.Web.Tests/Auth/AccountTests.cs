@@ -201,7 +201,7 @@ public sealed class AccountTests
         chunked.Headers.ContentType = chunkedForm.Headers.ContentType;
         var resp2 = await t.Client.PostAsync("/api/v1/uploads", chunked);
         Assert.Equal(HttpStatusCode.RequestEntityTooLarge, resp2.StatusCode);
-        Assert.Contains("is over the limit", (await Json(resp2)).GetProperty("detail").GetString());
+        Assert.Contains("PulseLadder:MaxUploadBytes", (await Json(resp2)).GetProperty("detail").GetString());
         using var c = t.Db.Open();
         Assert.Equal(0, ObservationStore.Count(c));
     }

@@ -17,10 +17,10 @@ public sealed class AuditExportTests(ExportFixture fx)
     {
         var json = await fx.App.Client.GetFromJsonAsync<JsonElement>($"/api/v1/fields/{fx.FieldId}/export?format=json");
         var audit = json.GetProperty("audit").EnumerateArray().ToList();
-        // The fixture: one upload (actor defaults to "uploader"), then T-CEP-1 accepted by "test".
-        Assert.Contains(audit, a => a.GetProperty("action").GetString() == "upload" && a.GetProperty("actor").GetString() == "uploader"
+        // The fixture: one upload, then T-CEP-1 accepted, both by the test host's signed-in admin.
+        Assert.Contains(audit, a => a.GetProperty("action").GetString() == "upload" && a.GetProperty("actor").GetString() == TestApp.AdminName
             && a.GetProperty("subject").GetString() == "batch 1" && a.GetProperty("detail").GetString()!.Contains("stars added 2"));
-        Assert.Contains(audit, a => a.GetProperty("action").GetString() == "review:accept" && a.GetProperty("actor").GetString() == "test"
+        Assert.Contains(audit, a => a.GetProperty("action").GetString() == "review:accept" && a.GetProperty("actor").GetString() == TestApp.AdminName
             && a.GetProperty("subject").GetString() == "star T-CEP-1");
         var ids = audit.Select(a => a.GetProperty("id").GetInt64()).ToList();
         Assert.Equal(ids.Order(), ids);
@@ -85,17 +85,18 @@ public sealed class AuditExportIsolationTests
         string stars = "star,field,ra_deg,dec_deg\nA-1,field-a,10,10\nB-1,field-b,20,20\n";
         (await t.Client.PostAsync("/api/v1/uploads", Fixtures.Form(stars, [("a.csv", Fixtures.Photometry("A-1", 5.0, 13, nights: 20))]))).EnsureSuccessStatusCode();
         var second = Fixtures.Form(null, [("b.csv", Fixtures.Photometry("B-1", 7.0, 14, nights: 20))]);
-        second.Add(new StringContent("observer-b"), "by");
-        (await t.Client.PostAsync("/api/v1/uploads", second)).EnsureSuccessStatusCode();
+        // The audit names the signed-in account: the second batch comes from an observer's token.
+        using var observer = t.ClientFor("observer", "observer-b");
+        (await observer.PostAsync("/api/v1/uploads", second)).EnsureSuccessStatusCode();
         var fields = (await t.Client.GetFromJsonAsync<JsonElement>("/api/v1/fields")).EnumerateArray().ToDictionary(f => f.GetProperty("name").GetString()!, f => f.GetProperty("field_id").GetInt64());
-        (await t.Client.PutAsJsonAsync($"/api/v1/fields/{fields["field-b"]}/settings", new { default_ebv = 0.05, by = "admin-b" })).EnsureSuccessStatusCode();
+        (await t.Client.PutAsJsonAsync($"/api/v1/fields/{fields["field-b"]}/settings", new { default_ebv = 0.05 })).EnsureSuccessStatusCode();
 
         async Task<List<(string Action, string Subject, string Actor)>> Audit(string field) =>
             (await t.Client.GetFromJsonAsync<JsonElement>($"/api/v1/fields/{fields[field]}/export?format=json")).GetProperty("audit").EnumerateArray()
                 .Select(a => (a.GetProperty("action").GetString()!, a.GetProperty("subject").GetString()!, a.GetProperty("actor").GetString()!)).ToList();
         // Batch 1 (star list + A-1 photometry) touched both fields' stars; batch 2 only B-1; the settings change only field-b.
-        Assert.Equal([("upload", "batch 1", "uploader")], await Audit("field-a"));
-        Assert.Equal([("upload", "batch 1", "uploader"), ("upload", "batch 2", "observer-b"), ("field:settings", "field field-b", "admin-b")], await Audit("field-b"));
+        Assert.Equal([("upload", "batch 1", TestApp.AdminName)], await Audit("field-a"));
+        Assert.Equal([("upload", "batch 1", TestApp.AdminName), ("upload", "batch 2", "observer-b"), ("field:settings", "field field-b", TestApp.AdminName)], await Audit("field-b"));
         var campaign = (await t.Client.GetFromJsonAsync<JsonElement>("/api/v1/export?format=json")).GetProperty("audit");
         Assert.Equal(3, campaign.GetArrayLength());
     }

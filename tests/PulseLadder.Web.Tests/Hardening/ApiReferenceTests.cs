@@ -65,7 +65,7 @@ public sealed class ApiReferenceTests
         Assert.Equal(expected, listed);   // every operation exactly once
         var names = grouped.Select(g => g.GetProperty("name").GetString()!).ToList();
         // Tags are the declaring classes (FieldsApi ...); the inline time-scales handler is grouped by its resource.
-        Assert.Equal(["Export", "Fields", "Review", "Stars", "time-scales", "Uploads"], names);   // localeCompare order
+        Assert.Equal(["Account", "Admin", "Export", "Fields", "Review", "Stars", "time-scales", "Uploads"], names);   // localeCompare order
         var stars = grouped.SelectMany(g => g.GetProperty("ops").EnumerateArray()).Single(o => o.GetProperty("path").GetString() == "/api/v1/fields/{fieldId}/stars");
         var parameters = stars.GetProperty("params").EnumerateArray().Select(x => x.GetString()!).ToList();
         Assert.Contains(parameters, x => x.StartsWith("fieldId:integer", StringComparison.Ordinal));

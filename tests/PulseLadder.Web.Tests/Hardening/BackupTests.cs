@@ -71,6 +71,8 @@ public sealed class BackupTests
                 await Task.Delay(150);
             }
             Assert.Equal(0, await t.WaitForAnalysesAsync(TimeSpan.FromSeconds(120)));
+            // The field pass and summaries follow the last analysis: the final snapshot is taken once they are done too.
+            Assert.True(await t.WaitForJobsIdleAsync(TimeSpan.FromSeconds(60)), "jobs still running after 60 s");
             string final = Path.Combine(backups, "final.db");
             var r = Backup.ToFile(t.Db, final);
             Assert.True(r.Ok, r.Message);
@@ -80,8 +82,11 @@ public sealed class BackupTests
             Assert.Equal("target_exists", Backup.ToFile(t.Db, final).FailureReason);
         }
 
+        // The field pass (run once a field is fully analysed) may rewrite a star's class, distance, input hash and
+        // result afterwards, so a snapshot's analysis is compared with the final one on what the pass leaves alone.
+        const string stable = "SELECT star_id, revision, pipeline_version, outcome, period_days, json_valid(result_json) AS whole FROM analyses ORDER BY star_id";
         List<string> finalAnalyses;
-        using (var src = OpenReadOnly(sourceFile)) finalAnalyses = Rows(src, "analyses");
+        using (var src = OpenReadOnly(sourceFile)) finalAnalyses = Lines(src, stable);
         bool sawMidAnalysis = false;
         foreach (var (path, _) in snapshots)
         {
@@ -92,7 +97,7 @@ public sealed class BackupTests
             // Every observation of the upload, exactly as stored.
             Assert.Equal(sourceObservations, Rows(b, "observations"));
             // Analyses: a subset of the source's final rows (a job's row is there whole or not at all), each for a known star.
-            var analyses = Rows(b, "analyses");
+            var analyses = Lines(b, stable);
             Assert.Empty(analyses.Except(finalAnalyses));
             Assert.Equal(0, b.ExecuteScalar<long>("SELECT COUNT(*) FROM analyses a LEFT JOIN stars s ON s.id = a.star_id WHERE s.id IS NULL"));
             if (analyses.Count < 30) sawMidAnalysis = true;
@@ -126,7 +131,11 @@ public sealed class BackupTests
             Assert.Equal(0, await t.WaitForAnalysesAsync(TimeSpan.FromSeconds(1)));
             using var c = (SqliteConnection)t.Db.Open();
             using var src = OpenReadOnly(sourceFile);
-            foreach (var table in Tables) Assert.Equal(Rows(src, table), Rows(c, table));
+            foreach (var table in Tables.Where(x => x != "audit_log")) Assert.Equal(Rows(src, table), Rows(c, table));
+            // The audit log is append-only and the restored host appends its own start-up entries (its test account,
+            // its calibration registry): the source's log is a prefix of the restored one.
+            var sourceLog = Rows(src, "audit_log");
+            Assert.Equal(sourceLog, Rows(c, "audit_log").Take(sourceLog.Count));
         }
     }
 
