@@ -16,11 +16,11 @@ namespace PulseLadder.ScaleOut.Tests;
 public sealed class ScaledModeTests(ITestOutputHelper output)
 {
     /// <summary>
-    /// Stars in the fault test. The issue asks for 2,000; on the 2-core CI machine that takes far longer than the test
-    /// budget, so the default is smaller; PULSELADDER_SCALEOUT_STARS runs the full size by hand.
+    /// Stars in the fault test: the issue's 2,000 (about 2.5 minutes on this 2-core machine since uploads stream and
+    /// stars travel in batches); PULSELADDER_SCALEOUT_STARS sets another size (e.g. 80 for a quick local run).
     /// </summary>
     private static int StarCount =>
-        int.TryParse(Environment.GetEnvironmentVariable("PULSELADDER_SCALEOUT_STARS"), NumberStyles.Integer, CultureInfo.InvariantCulture, out int n) ? n : 80;
+        int.TryParse(Environment.GetEnvironmentVariable("PULSELADDER_SCALEOUT_STARS"), NumberStyles.Integer, CultureInfo.InvariantCulture, out int n) ? n : 2000;
 
     [Fact]
     public async Task Workers_StoreExactlyOneCurrentResultPerStar_WhenAWorkerIsKilledAndPostgresRestarts()
@@ -96,6 +96,11 @@ public sealed class ScaledModeTests(ITestOutputHelper output)
             // job must come back quickly.
             await WaitUntil(() => Done(db) >= stars, Phase(stars / 2), "every star", all);
             output.WriteLine($"all {stars} stars analysed after {sw.Elapsed.TotalSeconds:F1} s");
+            // The killed worker's job itself comes back once its invisibility timeout (30 s, sliding) passes, even when
+            // a restarted worker's recovery has meanwhile queued its stars again: it must then succeed, storing nothing
+            // twice (checked below, after it ran).
+            if (inFlight is { } k)
+                await WaitUntil(() => JobState(db, k) == "Succeeded", TimeSpan.FromSeconds(180), $"the interrupted job {k} to succeed", all);
             Assert.False(web.HasExited, "web host exited:\n" + web.Output);
             Assert.False(b.HasExited, "worker-b exited:\n" + b.Output);
 
