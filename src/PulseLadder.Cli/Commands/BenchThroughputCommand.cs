@@ -346,11 +346,11 @@ public sealed class BenchThroughputCommand : Command<BenchThroughputCommand.Sett
         try
         {
             if (!scaled)
-                procs.Add(Start(work, mode + "-web.log", "serve", "--urls", url, "--data-dir", Path.Combine(work, mode), "--workers", workers.ToString(CultureInfo.InvariantCulture)));
+                procs.Add(Start(work, mode + "-web.log", "serve", "--single-user", "--urls", url, "--data-dir", Path.Combine(work, mode), "--workers", workers.ToString(CultureInfo.InvariantCulture)));
             else
             {
                 cs = CreateDatabase(admin!, "plx_bench_e2e");
-                procs.Add(Start(work, mode + "-web.log", "serve", "--urls", url, "--database", "postgres:" + cs, "--jobs", "postgres", "--no-jobs"));
+                procs.Add(Start(work, mode + "-web.log", "serve", "--single-user", "--urls", url, "--database", "postgres:" + cs, "--jobs", "postgres", "--no-jobs"));
             }
             using var http = new HttpClient { BaseAddress = new Uri(url), Timeout = TimeSpan.FromMinutes(30) };
             WaitHealthy(http, procs[0]);
@@ -415,7 +415,7 @@ public sealed class BenchThroughputCommand : Command<BenchThroughputCommand.Sett
             ["PulseLadder__MaxUploadBytes"] = (bytes + (64L << 20)).ToString(CultureInfo.InvariantCulture),
             ["PulseLadder__MaxUploadRows"] = (rows + 10).ToString(CultureInfo.InvariantCulture),
         };
-        var web = Start(work, "upload-web.log", env, "serve", "--urls", url, "--data-dir", Path.Combine(work, "upload"), "--no-jobs");
+        var web = Start(work, "upload-web.log", env, "serve", "--single-user", "--urls", url, "--data-dir", Path.Combine(work, "upload"), "--no-jobs");
         try
         {
             using var http = new HttpClient { BaseAddress = new Uri(url), Timeout = TimeSpan.FromMinutes(60) };
