@@ -10,16 +10,10 @@ namespace PulseLadder.Cli.Commands;
 /// </summary>
 public sealed class BackupCommand : Command<BackupCommand.Settings>
 {
-    public sealed class Settings : CommandSettings
+    public sealed class Settings : DatabaseSettings
     {
         [CommandOption("--out <FILE>"), Description("Snapshot file to write (required).")]
         public string? Out { get; init; }
-
-        [CommandOption("--data-dir <DIR>"), Description("Folder of the embedded SQLite database (default ./pulseladder-data).")]
-        public string? DataDir { get; init; }
-
-        [CommandOption("--database <SETTING>"), Description("sqlite:PATH or postgres:CONNECTION STRING (overrides --data-dir).")]
-        public string? Database { get; init; }
 
         [CommandOption("--force"), Description("Overwrite the snapshot file when it exists.")]
         public bool Force { get; init; }
@@ -30,14 +24,8 @@ public sealed class BackupCommand : Command<BackupCommand.Settings>
     internal static int Run(Settings s, TextWriter output, TextWriter error)
     {
         if (string.IsNullOrWhiteSpace(s.Out)) { error.WriteLine("pulseladder backup: --out FILE is required"); return 2; }
-        string setting = !string.IsNullOrWhiteSpace(s.Database) ? s.Database
-            : "sqlite:" + Path.Combine(Path.GetFullPath(s.DataDir ?? "pulseladder-data"), "pulseladder.db");
-        if (setting.StartsWith("sqlite:", StringComparison.OrdinalIgnoreCase) && !File.Exists(setting["sqlite:".Length..]))
-        {
-            error.WriteLine($"pulseladder backup: no database at {setting["sqlite:".Length..]}");
-            return 2;
-        }
-        var r = Backup.ToFile(PulseLadder.Storage.Database.FromSetting(setting), s.Out, s.Force);
+        if (s.OpenExisting("backup", error) is not { } db) return 2;
+        var r = Backup.ToFile(db, s.Out, s.Force);
         (r.Ok ? output : error).WriteLine((r.Ok ? "" : "pulseladder backup: ") + r.Message);
         return r.Ok ? 0 : 1;
     }

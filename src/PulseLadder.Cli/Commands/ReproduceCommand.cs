@@ -12,16 +12,10 @@ namespace PulseLadder.Cli.Commands;
 /// </summary>
 public sealed class ReproduceCommand : Command<ReproduceCommand.Settings>
 {
-    public sealed class Settings : CommandSettings
+    public sealed class Settings : DatabaseSettings
     {
         [CommandArgument(0, "<STAR>"), Description("Star name (or numeric id).")]
         public string Star { get; init; } = "";
-
-        [CommandOption("--data-dir <DIR>"), Description("Folder of the embedded SQLite database (default ./pulseladder-data).")]
-        public string? DataDir { get; init; }
-
-        [CommandOption("--database <SETTING>"), Description("sqlite:PATH or postgres:CONNECTION STRING (overrides --data-dir).")]
-        public string? Database { get; init; }
 
         [CommandOption("--calibration-dir <DIR>"), Description("Folder of administrator calibration files (default DATA-DIR/calibrations, as the service).")]
         public string? CalibrationDir { get; init; }
@@ -32,17 +26,10 @@ public sealed class ReproduceCommand : Command<ReproduceCommand.Settings>
 
     public override int Execute(CommandContext context, Settings s, CancellationToken ct)
     {
-        string setting = !string.IsNullOrWhiteSpace(s.Database) ? s.Database
-            : "sqlite:" + Path.Combine(Path.GetFullPath(s.DataDir ?? "pulseladder-data"), "pulseladder.db");
-        if (setting.StartsWith("sqlite:", StringComparison.OrdinalIgnoreCase) && !File.Exists(setting["sqlite:".Length..]))
-        {
-            Console.Error.WriteLine($"pulseladder reproduce: no database at {setting["sqlite:".Length..]}");
-            return 2;
-        }
-        var db = Database.FromSetting(setting);
+        if (s.OpenExisting("reproduce", Console.Error) is not { } db) return 2;
         db.EnsureSchemaIsCurrent();
         string calDir = !string.IsNullOrWhiteSpace(s.CalibrationDir) ? Path.GetFullPath(s.CalibrationDir)
-            : Jobs.Calibrations.DefaultFolder(s.DataDir ?? "pulseladder-data");
+            : s.ResolveOptions().EffectiveCalibrationDir;
         Core.Calibration.CalibrationRegistry registry;
         try { registry = Jobs.Calibrations.LoadFolderOrThrow(calDir); }
         catch (InvalidOperationException e)

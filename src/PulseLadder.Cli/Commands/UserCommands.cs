@@ -8,35 +8,6 @@ using Spectre.Console.Cli;
 
 namespace PulseLadder.Cli.Commands;
 
-/// <summary>Where the campaign database is: the same options and environment settings as <c>serve</c>.</summary>
-public class DatabaseSettings : CommandSettings
-{
-    [CommandOption("--data-dir <DIR>"), Description("Folder of the SQLite database (default ./pulseladder-data).")]
-    public string? DataDir { get; init; }
-
-    [CommandOption("--database <SETTING>"), Description("sqlite:PATH or postgres:CONNECTION STRING (else PulseLadder__Database).")]
-    public string? Database { get; init; }
-
-    /// <summary>
-    /// Opens the database the server would use and brings its schema up to date (this build's migrations, under the
-    /// same lock as the web host), so the first admin can be created before the server's first start.
-    /// </summary>
-    internal Database OpenDatabase()
-    {
-        var overrides = new Dictionary<string, string?>();
-        if (DataDir is not null) overrides["PulseLadder:DataDir"] = DataDir;
-        if (Database is not null) overrides["PulseLadder:Database"] = Database;
-        var config = new ConfigurationBuilder().AddEnvironmentVariables().AddInMemoryCollection(overrides).Build();
-        var options = config.GetSection(PulseLadderOptions.Section).Get<PulseLadderOptions>() ?? new PulseLadderOptions();
-        if (options.Validate() is { } error) throw new InvalidOperationException(error);
-        if (!options.EffectiveDatabase.StartsWith("postgres:", StringComparison.OrdinalIgnoreCase))
-            Directory.CreateDirectory(Path.GetFullPath(options.DataDir));
-        var db = PulseLadder.Storage.Database.FromSetting(options.EffectiveDatabase);
-        db.Migrate(TimeProvider.System);
-        return db;
-    }
-}
-
 /// <summary><c>pulseladder user add NAME --role R</c>: creates an account; the password comes from standard input, never a default.</summary>
 public sealed class UserAddCommand : Command<UserAddCommand.Settings>
 {
