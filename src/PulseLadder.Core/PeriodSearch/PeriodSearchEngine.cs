@@ -1,3 +1,4 @@
+using System.Buffers;
 using System.Globalization;
 using PulseLadder.Core.LightCurves;
 using PulseLadder.Core.Photometry;
@@ -54,6 +55,7 @@ internal static class PeriodSearchEngine
         if (r.Periodogram.X.Length == 0) return r;
         var wy = new double[p.Indices.Length];
         SpectralTools.WindowOnGrid(data.AllT, p.Grid.F0, p.Grid.Df, p.Indices, wy);
+        for (int i = 0; i < wy.Length; i++) wy[i] = Math.Round(wy[i], PlotPowerDecimals);
         return r with { Window = new Curve(r.Periodogram.X, wy) };
     }
 
@@ -98,7 +100,24 @@ internal static class PeriodSearchEngine
         if (!(chi0 > 0) || !double.IsFinite(chi0))
             return (result with { FailureReason = "no_significant_period", Notes = [.. notes, "no_variance"] }, null);
 
-        var power = CombinedPower(data, grid);
+        // The grid-sized buffers (tens of thousands of frequencies: large-object-heap size) are pooled; fresh ones per
+        // star cost a full garbage collection every few stars.
+        double[] powerBuf = ArrayPool<double>.Shared.Rent(grid.Count), tmpBuf = ArrayPool<double>.Shared.Rent(grid.Count);
+        try
+        {
+            return SearchGrid(data, cls, grid, s, result, notes, chi0, harmonics, powerBuf.AsSpan(0, grid.Count), tmpBuf.AsSpan(0, grid.Count));
+        }
+        finally
+        {
+            ArrayPool<double>.Shared.Return(tmpBuf);
+            ArrayPool<double>.Shared.Return(powerBuf);
+        }
+    }
+
+    private static (PeriodSearchResult Result, PlotIndices? Plot) SearchGrid(SearchData data, PulsatorClass cls, FrequencyGrid grid, PeriodSearchSettings s,
+        PeriodSearchResult result, List<string> notes, double chi0, int harmonics, Span<double> power, Span<double> tmp)
+    {
+        CombinedPower(data, grid, power, tmp);
         var candidates = DistinctPeaks(power, grid, 1.0 / data.Baseline, Math.Max(s.Candidates, s.TopPeaks));
         if (candidates.Count == 0)
             return (result with { FailureReason = "no_significant_period", Notes = [.. notes, "no_peak"], Periodogram = Thinned(power, grid, SpectralTools.Thin(power)) }, null);
@@ -248,11 +267,20 @@ internal static class PeriodSearchEngine
         return new Candidate(x, CombinedPowerAt(data, x)) { ModelFrequency = x, ModelChi2 = v };
     }
 
-    private static Curve Thinned(double[] power, FrequencyGrid grid, int[] idx)
+    /// <summary>Decimals kept in the plotted curves (periodogram and window; the peaks keep full precision): 1e-7 c/d is
+    /// far below any grid step a plot can show, 1e-5 in power below a pixel. Rounded values print short, which
+    /// halves the stored result (the curves are most of it) and the time spent writing it.</summary>
+    internal const int PlotFrequencyDecimals = 7, PlotPowerDecimals = 5;
+
+    private static Curve Thinned(ReadOnlySpan<double> power, FrequencyGrid grid, int[] idx)
     {
         var x = new double[idx.Length];
         var y = new double[idx.Length];
-        for (int i = 0; i < idx.Length; i++) { x[i] = grid.At(idx[i]); y[i] = power[idx[i]]; }
+        for (int i = 0; i < idx.Length; i++)
+        {
+            x[i] = Math.Round(grid.At(idx[i]), PlotFrequencyDecimals);
+            y[i] = Math.Round(power[idx[i]], PlotPowerDecimals);
+        }
         return new Curve(x, y);
     }
 
@@ -270,19 +298,29 @@ internal static class PeriodSearchEngine
     internal static double[] CombinedPower(SearchData data, FrequencyGrid grid)
     {
         var power = new double[grid.Count];
-        var tmp = data.Bands.Count > 1 ? new double[grid.Count] : power;
+        CombinedPower(data, grid, power, data.Bands.Count > 1 ? new double[grid.Count] : power);
+        return power;
+    }
+
+    /// <summary>As above into <paramref name="power"/> (grid.Count long); <paramref name="tmp"/> is scratch of the same length
+    /// (may be <paramref name="power"/> itself for one band).</summary>
+    internal static void CombinedPower(SearchData data, FrequencyGrid grid, Span<double> power, Span<double> tmp)
+    {
+        power.Clear();
         double chi0 = data.Bands.Sum(b => b.Chi2Mean);
+        if (data.Bands.Count == 1)
+        {
+            if (data.Bands[0].Chi2Mean > 0) Periodogram.Gls(data.Bands[0].T, data.Bands[0].Y, data.Bands[0].W, grid.F0, grid.Df, power);
+            return;
+        }
         foreach (var b in data.Bands)
         {
             if (!(b.Chi2Mean > 0)) continue;
             Periodogram.Gls(b.T, b.Y, b.W, grid.F0, grid.Df, tmp);
-            if (ReferenceEquals(tmp, power)) break;
             double wgt = b.Chi2Mean;
             for (int k = 0; k < power.Length; k++) power[k] += wgt * tmp[k];
         }
-        if (data.Bands.Count > 1)
-            for (int k = 0; k < power.Length; k++) power[k] /= chi0;
-        return power;
+        for (int k = 0; k < power.Length; k++) power[k] /= chi0;
     }
 
     /// <summary>
@@ -340,7 +378,7 @@ internal static class PeriodSearchEngine
     /// Grid indices of the highest interior local maxima, each more than <paramref name="separation"/> from every
     /// higher one kept. Maxima at the grid edges are not resolved peaks and are left out.
     /// </summary>
-    internal static List<int> DistinctPeaks(double[] p, FrequencyGrid grid, double separation, int count)
+    internal static List<int> DistinctPeaks(ReadOnlySpan<double> p, FrequencyGrid grid, double separation, int count)
     {
         var maxima = new List<int>();
         for (int k = 1; k < p.Length - 1; k++)

@@ -1,3 +1,4 @@
+using System.Buffers;
 namespace PulseLadder.Core.PeriodSearch;
 
 /// <summary>Spectral window, plot thinning and phase dispersion minimisation.</summary>
@@ -48,7 +49,20 @@ internal static class SpectralTools
             return;
         }
         // Powers s^g, g = 1..maxGap, of each point's one-step phasor s = exp(-2 pi i df t), row g-1.
-        var pr = new double[maxGap * n]; var pi = new double[maxGap * n];
+        // Up to 2e6 doubles each: pooled (large-object-heap size; fresh arrays per star cost full collections).
+        double[] prBuf = ArrayPool<double>.Shared.Rent(maxGap * n), piBuf = ArrayPool<double>.Shared.Rent(maxGap * n);
+        try { WindowByPhasors(t, f0, df, indices, result, maxGap, prBuf.AsSpan(0, maxGap * n), piBuf.AsSpan(0, maxGap * n)); }
+        finally
+        {
+            ArrayPool<double>.Shared.Return(piBuf);
+            ArrayPool<double>.Shared.Return(prBuf);
+        }
+    }
+
+    private static void WindowByPhasors(ReadOnlySpan<double> t, double f0, double df, ReadOnlySpan<int> indices, Span<double> result,
+        int maxGap, Span<double> pr, Span<double> pi)
+    {
+        int n = t.Length, m = indices.Length;
         for (int i = 0; i < n; i++)
         {
             (double s, double c) = Math.SinCos(2 * Math.PI * df * t[i]);
@@ -80,7 +94,7 @@ internal static class SpectralTools
             else
             {
                 int g = indices[j] - indices[j - 1];
-                (a, b) = RotateAndSum(re, im, pr.AsSpan((g - 1) * n, n), pi.AsSpan((g - 1) * n, n));
+                (a, b) = RotateAndSum(re, im, pr.Slice((g - 1) * n, n), pi.Slice((g - 1) * n, n));
             }
             a /= n; b /= n;
             result[j] = a * a + b * b;

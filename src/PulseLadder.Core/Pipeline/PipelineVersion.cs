@@ -6,8 +6,10 @@ namespace PulseLadder.Core.Pipeline;
 /// 0.1.1: vectorised harmonic least squares and spectral window (sums in another order: results move by rounding).
 /// 0.2.0: calibration registry in the input hash; field PL class pass recorded with the result.
 /// 0.2.1: both of the above together.
+/// 0.3.0: default grid oversampling 5 (was 10; peaks are refined locally as before); plotted periodogram and
+///        window stored rounded (1e-7 c/d, 1e-5 in power).
 /// </summary>
 public static class PipelineVersion
 {
-    public const string Current = "0.2.1";
+    public const string Current = "0.3.0";
 }

@@ -123,7 +123,7 @@ public sealed class ExportTests(ExportFixture fx)
         Assert.Contains("Cardelli, Clayton & Mathis (1989", text);
         Assert.Contains("BJD_TDB", text);
         Assert.Contains("Photometry of 1 star ", text);
-        Assert.Contains("oversampled by a factor 10", text);
+        Assert.Contains("oversampled by a factor 5", text);
     }
 
     private const string ReadVoTable = """
