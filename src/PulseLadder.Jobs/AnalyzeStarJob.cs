@@ -108,6 +108,10 @@ public sealed class AnalyzeStarJob(Database db, IAnalysisQueue queue, TimeProvid
     }
 
     internal static AnalysisRow ToRow(long starId, long revision, StarAnalysis r, string inputHash, string now)
+        => ToRow(starId, revision, r, inputHash, now, Json.Serialize(r));
+
+    /// <summary>As above with the result already serialised (<paramref name="resultJson"/> = Json.Serialize(r)).</summary>
+    internal static AnalysisRow ToRow(long starId, long revision, StarAnalysis r, string inputHash, string now, string resultJson)
     {
         var best = r.Search?.Peaks.FirstOrDefault();
         bool hasDistance = r.Distance is { FailureReason: null };
@@ -118,7 +122,7 @@ public sealed class AnalyzeStarJob(Database db, IAnalysisQueue queue, TimeProvid
             Fap = best?.Fap,
             DistanceModulus = hasDistance ? r.Distance!.Mu : null, DistanceModulusErr = hasDistance ? r.Distance!.MuErr : null,
             DistancePc = hasDistance ? r.Distance!.DistancePc : null, DistancePcErr = hasDistance ? r.Distance!.DistancePcErr : null,
-            Flags = string.Join(",", r.Flags), SummaryJson = Json.Serialize(AnalysisSummary.From(r)), ResultJson = Json.Serialize(r), InputHash = inputHash, CreatedAt = now,
+            Flags = string.Join(",", r.Flags), SummaryJson = Json.Serialize(AnalysisSummary.From(r)), ResultJson = resultJson, InputHash = inputHash, CreatedAt = now,
         };
     }
 
@@ -140,15 +144,40 @@ public sealed class AnalyzeStarJob(Database db, IAnalysisQueue queue, TimeProvid
         h.AppendData(Encoding.UTF8.GetBytes(Json.Serialize(settings)));
         h.AppendData(Encoding.UTF8.GetBytes(Json.Serialize(overrides)));
         h.AppendData(Encoding.UTF8.GetBytes(PipelineVersion.Current));
-        Span<byte> buf = stackalloc byte[8];
-        foreach (var o in obs)
+        // Per observation: id, time, mag, mag_err (8 bytes each, machine order), then UTF-8 of
+        // "band|observer|flag|scale". Gathered in a buffer and hashed in large pieces (same bytes as hashing each
+        // piece on its own: a hash does not see how its input was split).
+        byte[] buf = System.Buffers.ArrayPool<byte>.Shared.Rent(1 << 16);
+        try
         {
-            BitConverter.TryWriteBytes(buf, o.Id); h.AppendData(buf);
-            BitConverter.TryWriteBytes(buf, o.Time); h.AppendData(buf);
-            BitConverter.TryWriteBytes(buf, o.Mag); h.AppendData(buf);
-            BitConverter.TryWriteBytes(buf, o.MagErr); h.AppendData(buf);
-            h.AppendData(Encoding.UTF8.GetBytes(o.Band + "|" + o.Observer + "|" + o.Flag + "|" + o.Scale.ToCode()));
+            int at = 0;
+            foreach (var o in obs)
+            {
+                int need = 32 + 3 + Encoding.UTF8.GetMaxByteCount(o.Band.Length + o.Observer.Length + (o.Flag?.Length ?? 0) + 16);
+                if (at + need > buf.Length)
+                {
+                    h.AppendData(buf, 0, at);
+                    at = 0;
+                    if (need > buf.Length)
+                    {
+                        System.Buffers.ArrayPool<byte>.Shared.Return(buf);
+                        buf = System.Buffers.ArrayPool<byte>.Shared.Rent(need);
+                    }
+                }
+                var span = buf.AsSpan();
+                BitConverter.TryWriteBytes(span[at..], o.Id); at += 8;
+                BitConverter.TryWriteBytes(span[at..], o.Time); at += 8;
+                BitConverter.TryWriteBytes(span[at..], o.Mag); at += 8;
+                BitConverter.TryWriteBytes(span[at..], o.MagErr); at += 8;
+                at += Encoding.UTF8.GetBytes(o.Band, span[at..]); span[at++] = (byte)'|';
+                at += Encoding.UTF8.GetBytes(o.Observer, span[at..]); span[at++] = (byte)'|';
+                if (o.Flag is { } flag) at += Encoding.UTF8.GetBytes(flag, span[at..]);
+                span[at++] = (byte)'|';
+                at += Encoding.UTF8.GetBytes(o.Scale.ToCode(), span[at..]);
+            }
+            h.AppendData(buf, 0, at);
         }
+        finally { System.Buffers.ArrayPool<byte>.Shared.Return(buf); }
         return Convert.ToHexString(h.GetHashAndReset()).ToLowerInvariant();
     }
 }

@@ -74,7 +74,7 @@ public sealed class FieldSummaryJob(Database db, TimeProvider clock, Calibration
             if (string.Equals(json, row.ResultJson, StringComparison.Ordinal)) continue;
             var observations = ObservationStore.ForStar(c, star.Id);
             string hash = AnalyzeStarJob.InputHash(info, observations, updated.Settings, updated.Overrides, updated.FieldContext, registry);
-            var newRow = AnalyzeStarJob.ToRow(star.Id, row.Revision, updated, hash, clock.GetUtcNow().ToString("O"));
+            var newRow = AnalyzeStarJob.ToRow(star.Id, row.Revision, updated, hash, clock.GetUtcNow().ToString("O"), json);
             using var tx = c.BeginTransaction();
             // Only while the star is still at this revision: a newer analysis supersedes this pass.
             if (StarStore.Get(c, star.Id, tx) is { } now && now.Revision == row.Revision)

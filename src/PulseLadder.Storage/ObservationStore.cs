@@ -196,18 +196,42 @@ public static class ObservationStore
     }
 
     /// <summary>All observations of a star, in insertion order.</summary>
+    /// <remarks>
+    /// Read with a plain data reader (the analysis job calls this once per star: a mapped 8-field tuple cost more than
+    /// the query); band, observer and time-scale texts repeat within a star, so equal ones share one string.
+    /// </remarks>
     public static IReadOnlyList<Observation> ForStar(DbConnection c, long starId, DbTransaction? tx = null)
     {
-        var rows = c.Query<(long Id, double Time, string TimeScale, string Band, double Mag, double MagErr, string Observer, string? Flag)>(
-            "SELECT id, time, time_scale, band, mag, mag_err, observer, flag FROM observations WHERE star_id = @starId ORDER BY id",
-            new { starId }, tx);
+        using var cmd = c.CreateCommand();
+        cmd.Transaction = tx;
+        cmd.CommandText = "SELECT id, time, time_scale, band, mag, mag_err, observer, flag FROM observations WHERE star_id = @starId ORDER BY id";
+        var p = cmd.CreateParameter();
+        p.ParameterName = "starId";
+        p.Value = starId;
+        cmd.Parameters.Add(p);
         var list = new List<Observation>();
-        foreach (var r in rows)
+        var texts = new Dictionary<string, string>(StringComparer.Ordinal);
+        var scales = new Dictionary<string, TimeScale>(StringComparer.Ordinal);
+        using var r = cmd.ExecuteReader();
+        while (r.Read())
         {
-            TimeScales.TryParse(r.TimeScale, out var scale);
-            list.Add(new Observation(r.Id, r.Time, scale, r.Band, r.Mag, r.MagErr, r.Observer, r.Flag));
+            string scaleText = r.GetString(2);
+            if (!scales.TryGetValue(scaleText, out var scale))
+            {
+                TimeScales.TryParse(scaleText, out scale);
+                scales.Add(scaleText, scale);
+            }
+            list.Add(new Observation(r.GetInt64(0), r.GetDouble(1), scale, Shared(texts, r.GetString(3)), r.GetDouble(4), r.GetDouble(5),
+                Shared(texts, r.GetString(6)), r.IsDBNull(7) ? null : Shared(texts, r.GetString(7))));
         }
         return list;
+    }
+
+    private static string Shared(Dictionary<string, string> texts, string s)
+    {
+        if (texts.TryGetValue(s, out var known)) return known;
+        texts.Add(s, s);
+        return s;
     }
 
     public static long Count(DbConnection c) => c.ExecuteScalar<long>("SELECT COUNT(*) FROM observations");
