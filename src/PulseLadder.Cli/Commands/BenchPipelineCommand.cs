@@ -57,29 +57,34 @@ public sealed class BenchPipelineCommand : Command<BenchPipelineCommand.Settings
 
         foreach (var star in list) AnalysisPipeline.Run(star, obs[star.Name], settings);
         var t = new double[7];
+        var kb = new double[7];
         var sw = new CpuClock();
         long gridSum = 0; int searches = 0, secondPass = 0;
+        long a0 = 0;
+        void Start() { a0 = GC.GetAllocatedBytesForCurrentThread(); sw.Restart(); }
+        void Stop(int i) { t[i] += sw.ElapsedMs; kb[i] += (GC.GetAllocatedBytesForCurrentThread() - a0) / 1024.0; }
+        int g0 = GC.CollectionCount(0), g2 = GC.CollectionCount(2);
         for (int round = 0; round < s.Rounds; round++)
             foreach (var star in list)
             {
                 var o = obs[star.Name];
-                sw.Restart(); var c = Cleaner.RejectUnusable(o, settings.Cleaning); t[0] += sw.ElapsedMs;
-                sw.Restart(); var tm = BarycentricTime.ToBjdTdb(c.Kept, star.Position); t[1] += sw.ElapsedMs;
-                sw.Restart(); var se = PeriodFinder.FindPeriods(tm.Points, star.DeclaredClass ?? PulsatorClass.Unknown, settings.PeriodSearch); t[2] += sw.ElapsedMs;
+                Start(); var c = Cleaner.RejectUnusable(o, settings.Cleaning); Stop(0);
+                Start(); var tm = BarycentricTime.ToBjdTdb(c.Kept, star.Position); Stop(1);
+                Start(); var se = PeriodFinder.FindPeriods(tm.Points, star.DeclaredClass ?? PulsatorClass.Unknown, settings.PeriodSearch); Stop(2);
                 gridSum += se.FrequencyCount; searches++;
                 if (se.Notes.Contains("offsets_removed_second_pass")) secondPass++;
                 if (se.Peaks.Count == 0) continue;
-                sw.Restart(); var pe = PeriodFinder.RefinePeriod(tm.Points, se.Peaks[0].Frequency, se, settings.PeriodSearch); t[3] += sw.ElapsedMs;
-                sw.Restart(); var fit = LightCurveFitter.FitBands(tm.Points, pe.PeriodDays, settings.Fit, settings.Cleaning); t[4] += sw.ElapsedMs;
-                sw.Restart(); var cl = Classifier.Classify(star, pe, se, fit.Fits, null); t[5] += sw.ElapsedMs;
-                sw.Restart(); DistanceEstimator.EstimateDistance(star, cl.Class, pe.PeriodDays, pe.PeriodErrDays, fit.Fits, settings.Distance); t[6] += sw.ElapsedMs;
+                Start(); var pe = PeriodFinder.RefinePeriod(tm.Points, se.Peaks[0].Frequency, se, settings.PeriodSearch); Stop(3);
+                Start(); var fit = LightCurveFitter.FitBands(tm.Points, pe.PeriodDays, settings.Fit, settings.Cleaning); Stop(4);
+                Start(); var cl = Classifier.Classify(star, pe, se, fit.Fits, null); Stop(5);
+                Start(); DistanceEstimator.EstimateDistance(star, cl.Class, pe.PeriodDays, pe.PeriodErrDays, fit.Fits, settings.Distance); Stop(6);
             }
         int n = list.Count * s.Rounds;
         string[] names = ["clean", "times", "period search", "refine+PDM", "fit+clip", "classify", "distance"];
         Console.WriteLine(string.Create(CultureInfo.InvariantCulture, $"demo stars: {list.Count}, mean points per star: {list.Average(x => obs[x.Name].Count):F0}, kernel: {PulseLadder.Kernels.Periodogram.GlsVariantName}"));
         Console.WriteLine(string.Create(CultureInfo.InvariantCulture, $"  mean grid {gridSum / (double)Math.Max(1, searches):F0} frequencies; searched twice (offsets removed): {100.0 * secondPass / Math.Max(1, searches):F0}% of stars"));
-        for (int i = 0; i < names.Length; i++) Console.WriteLine(string.Create(CultureInfo.InvariantCulture, $"  {names[i],-14} {t[i] / n,8:F2} CPU ms/star"));
-        Console.WriteLine(string.Create(CultureInfo.InvariantCulture, $"  {"sum",-14} {t.Sum() / n,8:F2} CPU ms/star"));
+        for (int i = 0; i < names.Length; i++) Console.WriteLine(string.Create(CultureInfo.InvariantCulture, $"  {names[i],-14} {t[i] / n,8:F2} CPU ms/star {kb[i] / n,8:F0} KiB allocated/star"));
+        Console.WriteLine(string.Create(CultureInfo.InvariantCulture, $"  {"sum",-14} {t.Sum() / n,8:F2} CPU ms/star {kb.Sum() / n,8:F0} KiB allocated/star; collections per 100 stars: gen0 {100.0 * (GC.CollectionCount(0) - g0) / n:F1}, gen2 {100.0 * (GC.CollectionCount(2) - g2) / n:F1}"));
 
         var wall = Stopwatch.StartNew();
         sw.Restart();

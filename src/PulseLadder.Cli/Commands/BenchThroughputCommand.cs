@@ -170,17 +170,22 @@ public sealed class BenchThroughputCommand : Command<BenchThroughputCommand.Sett
     {
         var (db, outcome) = Load(Path.Combine(work, "direct.db"), starsCsv, photCsv);
         var job = new AnalyzeStarJob(db, new NoQueue(), TimeProvider.System, NullLogger<AnalyzeStarJob>.Instance);
-        // Warm-up on a handful of stars, then their results are removed so every star is analysed in the timed pass.
-        foreach (var (id, rev) in outcome.StarsToAnalyse.Take(10)) job.Run(id, rev);
+        // One warm-up pass over every star (the code tiered up, as in a long-running worker), then the results are removed
+        // so every star is analysed again in the timed pass.
+        foreach (var (id, rev) in outcome.StarsToAnalyse) job.Run(id, rev);
         using (var c = db.Open())
         using (var cmd = c.CreateCommand()) { cmd.CommandText = "DELETE FROM analyses"; cmd.ExecuteNonQuery(); }
         var cpu = new BenchPipelineCommand.CpuClock();
+        int gen0 = GC.CollectionCount(0), gen1 = GC.CollectionCount(1), gen2 = GC.CollectionCount(2);
+        long allocated = GC.GetAllocatedBytesForCurrentThread();
         cpu.Restart();
         var sw = Stopwatch.StartNew();
         foreach (var (id, rev) in outcome.StarsToAnalyse) job.Run(id, rev);
-        double ms = sw.Elapsed.TotalMilliseconds / outcome.StarsToAnalyse.Count;
-        double cpuMs = cpu.ElapsedMs / outcome.StarsToAnalyse.Count;
+        int n = outcome.StarsToAnalyse.Count;
+        double ms = sw.Elapsed.TotalMilliseconds / n;
+        double cpuMs = cpu.ElapsedMs / n;
         Console.WriteLine(F($"analysis job without queue (AnalyzeStarJob.Run, SQLite, 1 thread): {ms:F2} ms/star wall, {cpuMs:F2} CPU ms/star -> at most {1000 / cpuMs:F0} stars/s per core; load {LoadAverage()}"));
+        Console.WriteLine(F($"  allocated {(GC.GetAllocatedBytesForCurrentThread() - allocated) / 1024.0 / n:F0} KiB/star; collections per 100 stars: gen0 {100.0 * (GC.CollectionCount(0) - gen0) / n:F1}, gen1 {100.0 * (GC.CollectionCount(1) - gen1) / n:F1}, gen2 {100.0 * (GC.CollectionCount(2) - gen2) / n:F1}"));
         return cpuMs;
     }
 
@@ -202,6 +207,7 @@ public sealed class BenchThroughputCommand : Command<BenchThroughputCommand.Sett
             WorkerCount = 1, Queues = ["summary", "analysis", "default"], SchedulePollingInterval = TimeSpan.FromSeconds(1),
         };
         var cpu0 = Process.GetCurrentProcess().TotalProcessorTime;
+        int gen2 = GC.CollectionCount(2), gen0 = GC.CollectionCount(0);
         var sw = Stopwatch.StartNew();
         for (int i = 0; i < jobs; i++) client.Enqueue(() => QueueProbe.Tick());
         double enqueueMs = sw.Elapsed.TotalMilliseconds;
@@ -212,7 +218,7 @@ public sealed class BenchThroughputCommand : Command<BenchThroughputCommand.Sett
             double runMs = sw.Elapsed.TotalMilliseconds;
             double cpuMs = (Process.GetCurrentProcess().TotalProcessorTime - cpu0).TotalMilliseconds;
             double perJob = (enqueueMs + runMs) / jobs;
-            Console.WriteLine(F($"queue {name}: {jobs} no-op jobs, enqueue {enqueueMs / jobs:F3} ms/job, fetch+run+state changes {runMs / jobs:F3} ms/job (1 worker), total {perJob:F3} ms/job wall, {cpuMs / jobs:F3} CPU ms/job (this process); load {LoadAverage()}"));
+            Console.WriteLine(F($"queue {name}: {jobs} no-op jobs, enqueue {enqueueMs / jobs:F3} ms/job, fetch+run+state changes {runMs / jobs:F3} ms/job (1 worker), total {perJob:F3} ms/job wall, {cpuMs / jobs:F3} CPU ms/job (this process); collections per 1000 jobs: gen0 {1000.0 * (GC.CollectionCount(0) - gen0) / jobs:F0}, gen2 {1000.0 * (GC.CollectionCount(2) - gen2) / jobs:F0}; load {LoadAverage()}"));
             return perJob;
         }
     }
@@ -326,6 +332,14 @@ public sealed class BenchThroughputCommand : Command<BenchThroughputCommand.Sett
         return (j.GetProperty("stars_done").GetInt64(), j.GetProperty("stars_total").GetInt64());
     }
 
+    /// <summary>User + system CPU time of the web and worker processes so far (ms): less disturbed by other load than wall time.</summary>
+    private static double ProcessCpuMs(IEnumerable<Process> ps)
+    {
+        double ms = 0;
+        foreach (var p in ps) { p.Refresh(); ms += p.TotalProcessorTime.TotalMilliseconds; }
+        return ms;
+    }
+
     private static void Kill(IEnumerable<Process> ps)
     {
         foreach (var p in ps)
@@ -361,6 +375,7 @@ public sealed class BenchThroughputCommand : Command<BenchThroughputCommand.Sett
                 // Let the workers start and begin polling before the clock starts (their start-up is not throughput).
                 Thread.Sleep(8000);
             }
+            double cpu0 = ProcessCpuMs(procs);
             var sw = Stopwatch.StartNew();
             using (var r = Upload(http, starsCsv, photCsv))
                 if (!r.IsSuccessStatusCode) throw new InvalidOperationException($"{mode}: upload failed: {(int)r.StatusCode} {r.Content.ReadAsStringAsync(ct).GetAwaiter().GetResult()}");
@@ -374,7 +389,8 @@ public sealed class BenchThroughputCommand : Command<BenchThroughputCommand.Sett
                 Thread.Sleep(100);
             }
             double all = sw.Elapsed.TotalSeconds;
-            Console.WriteLine(F($"{mode}: {total} stars, upload {upload:F2} s, upload to last stored result {all:F2} s = {total / all:F1} stars/s end to end; analysis after the upload returned {all - upload:F2} s = {total / (all - upload):F1} stars/s, {(all - upload) * 1000 * workers / total:F2} ms per job per worker thread; load {LoadAverage()}"));
+            double cpuPerStar = (ProcessCpuMs(procs) - cpu0) / total;
+            Console.WriteLine(F($"{mode}: {total} stars, upload {upload:F2} s, upload to last stored result {all:F2} s = {total / all:F1} stars/s end to end; analysis after the upload returned {all - upload:F2} s = {total / (all - upload):F1} stars/s, {(all - upload) * 1000 * workers / total:F2} ms per job per worker thread; server processes' CPU {cpuPerStar:F2} ms/star (upload included) -> {2000 / cpuPerStar:F0} stars/s on two free cores; load {LoadAverage()}"));
         }
         finally
         {
