@@ -69,30 +69,53 @@ internal sealed class SearchData
 
         var bands = new List<BandSeries>();
         var skipped = new List<string>();
-        foreach (var g in good.GroupBy(p => p.Band ?? "", StringComparer.Ordinal).OrderBy(g => g.Key, StringComparer.Ordinal))
+        // Grouped by band (ordinal order), each band in time order (stable: equal times keep their input order),
+        // observers by count then name. Index arrays instead of LINQ groupings: this runs twice per star.
+        var byBand = new Dictionary<string, List<int>>(StringComparer.Ordinal);
+        for (int i = 0; i < good.Count; i++)
         {
-            var list = g.OrderBy(p => p.Bjd).ToList();
-            if (list.Count < MinBandPoints) { skipped.Add(g.Key); continue; }
-            var obsNames = list.GroupBy(p => p.Observer ?? "", StringComparer.Ordinal)
-                .Select(o => (Name: o.Key, N: o.Count()))
-                .OrderByDescending(o => o.N).ThenBy(o => o.Name, StringComparer.Ordinal).ToArray();
+            string key = good[i].Band ?? "";
+            if (!byBand.TryGetValue(key, out var members)) byBand.Add(key, members = []);
+            members.Add(i);
+        }
+        var bandNames = byBand.Keys.ToArray();
+        Array.Sort(bandNames, StringComparer.Ordinal);
+        foreach (string bandName in bandNames)
+        {
+            var members = byBand[bandName];
+            if (members.Count < MinBandPoints) { skipped.Add(bandName); continue; }
+            int n = members.Count;
+            var order = members.ToArray();
+            var keys = new double[n];
+            for (int i = 0; i < n; i++) keys[i] = good[order[i]].Bjd;
+            if (!IsSorted(keys)) Array.Sort(order, (a, b) => good[a].Bjd.CompareTo(good[b].Bjd) is var c && c != 0 ? c : a.CompareTo(b));
+            var counts = new Dictionary<string, int>(StringComparer.Ordinal);
+            foreach (int i in order)
+            {
+                string name = good[i].Observer ?? "";
+                counts[name] = counts.GetValueOrDefault(name) + 1;
+            }
+            var obsNames = counts.Keys.ToArray();
+            Array.Sort(obsNames, (a, b) => counts[b].CompareTo(counts[a]) is var c && c != 0 ? c : string.CompareOrdinal(a, b));
             var index = new Dictionary<string, int>(StringComparer.Ordinal);
-            for (int i = 0; i < obsNames.Length; i++) index[obsNames[i].Name] = i;
-            int n = list.Count;
+            for (int i = 0; i < obsNames.Length; i++) index[obsNames[i]] = i;
             var t = new double[n]; var y = new double[n]; var w = new double[n]; var o = new int[n];
             double ws = 0, wy = 0;
             for (int i = 0; i < n; i++)
             {
-                t[i] = list[i].Bjd - tref; y[i] = list[i].Mag; w[i] = Weight(list[i].MagErr);
-                o[i] = index[list[i].Observer ?? ""];
+                var p = good[order[i]];
+                t[i] = p.Bjd - tref; y[i] = p.Mag; w[i] = Weight(p.MagErr);
+                o[i] = index[p.Observer ?? ""];
                 ws += w[i]; wy += w[i] * y[i];
             }
             double ybar = wy / ws, chi0 = 0;
             for (int i = 0; i < n; i++) { double d = y[i] - ybar; chi0 += w[i] * d * d; }
+            var observerCounts = new int[obsNames.Length];
+            for (int i = 0; i < obsNames.Length; i++) observerCounts[i] = counts[obsNames[i]];
             bands.Add(new BandSeries
             {
-                Band = g.Key, T = t, Y = y, W = w, Obs = o,
-                Observers = obsNames.Select(x => x.Name).ToArray(), ObserverCounts = obsNames.Select(x => x.N).ToArray(),
+                Band = bandName, T = t, Y = y, W = w, Obs = o,
+                Observers = obsNames, ObserverCounts = observerCounts,
                 Chi2Mean = chi0, YMean = ybar,
             });
         }
@@ -110,6 +133,12 @@ internal sealed class SearchData
             Bands = bands, ReferenceEpoch = tref, Baseline = baseline, UsablePoints = good.Count, SkippedBands = skipped,
             Count = count, AllT = allT, AllW = allW,
         };
+    }
+
+    private static bool IsSorted(double[] x)
+    {
+        for (int i = 1; i < x.Length; i++) if (!(x[i] >= x[i - 1])) return false;
+        return true;
     }
 
     /// <summary>A copy with each point's observer offset (per band) subtracted from its magnitude.</summary>
