@@ -257,10 +257,11 @@ public static class ObservationStore
     public static void RestoreIndexes(DbConnection c, DbTransaction tx, IReadOnlyList<string> definitions)
     {
         if (definitions.Count == 0) return;
-        // CREATE INDEX sorts within the page cache and spills to temporary files past it: with the default 2 MB
-        // the sort of a few million keys went to disk (a quarter of the load's time); the bulk insert's 64 MB holds it.
+        // CREATE INDEX sorts in memory up to the cache size and merges sorted runs from temporary files past it.
+        // 16 MB: the bulk insert's 64 MB of cached pages are released first (a 1 GB upload peaked ~50 MB higher with
+        // the sort at 64 MB, no faster: docs/PERFORMANCE.md), while the default 2 MB made many small runs.
         long before = c.ExecuteScalar<long>("PRAGMA cache_size", transaction: tx);
-        c.Execute("PRAGMA cache_size=-65536", transaction: tx);
+        c.Execute("PRAGMA cache_size=-16384", transaction: tx);
         try
         {
             foreach (var sql in definitions) c.Execute(sql, transaction: tx);
