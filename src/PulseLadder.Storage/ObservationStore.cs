@@ -231,21 +231,21 @@ public static class ObservationStore
     internal const long MinRowsToRebuildIndexes = 50_000;
 
     /// <summary>
-    /// SQLite, a bulk load at least as large as the table: drops the indexes of observations inside
+    /// SQLite, a bulk load at least a quarter of the table's size: drops the indexes of observations inside
     /// <paramref name="tx"/> and returns their definitions, for <see cref="RestoreIndexes"/> to build again in the same
-    /// transaction after the rows. Inserting rows of many stars interleaved into the star index costs a B-tree
-    /// descent and frequent mid-tree page splits per row; building it once from the finished table is a sort. With
-    /// incoming rows at least the table's (upper bound: its largest id), the rebuild reads at most twice the incoming
-    /// rows. Safe: SQLite's DDL is transactional and the writer holds the write lock, so other connections (WAL
-    /// readers) keep seeing the committed schema with its indexes, and a rollback restores them; the indexes are
-    /// rebuilt from the stored SQL, exactly as the migrations created them. Else (PostgreSQL, small loads) returns an
-    /// empty list and changes nothing.
+    /// transaction after the rows. Inserting rows of many stars interleaved into the star index costs ~5 us per row
+    /// (a B-tree descent and mid-tree page splits), building it from the finished table ~0.4 us per table row (a sort;
+    /// docs/PERFORMANCE.md): with incoming rows at least a quarter of the table (upper bound: its largest id), the
+    /// rebuild costs at most ~2 us per incoming row. Safe: SQLite's DDL is transactional and the writer holds the write
+    /// lock, so other connections (WAL readers) keep seeing the committed schema with its indexes, and a rollback
+    /// restores them; the indexes are rebuilt from the stored SQL, exactly as the migrations created them. Else
+    /// (PostgreSQL, small loads) returns an empty list and changes nothing.
     /// </summary>
     public static IReadOnlyList<string> DeferIndexes(DbConnection c, DbTransaction tx, long incomingRows)
     {
         if (c is not SqliteConnection || incomingRows < MinRowsToRebuildIndexes) return [];
         long existing = c.ExecuteScalar<long>("SELECT COALESCE(MAX(id), 0) FROM observations", transaction: tx);
-        if (incomingRows < existing) return [];
+        if (incomingRows < existing / 4) return [];
         var indexes = c.Query<(string Name, string Sql)>(
             "SELECT name, sql FROM sqlite_master WHERE type = 'index' AND tbl_name = 'observations' AND sql IS NOT NULL ORDER BY name",
             transaction: tx).ToList();
