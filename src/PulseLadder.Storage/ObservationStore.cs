@@ -82,72 +82,193 @@ public static class ObservationStore
     }
 
     /// <summary>
-    /// SQLite: one statement prepared once and stepped per row through the native API, values bound as their native
-    /// types and repeated texts (band, observer, time scale) bound from cached UTF-8 bytes. The ADO.NET path spends
-    /// most of its time per row in parameter objects, boxing and type inference, not in SQLite.
+    /// SQLite: statements prepared once and stepped through the native API, values bound as their native types and
+    /// repeated texts (band, observer, time scale) bound from cached UTF-8 bytes. The ADO.NET path spends most of its
+    /// time per row in parameter objects, boxing and type inference, not in SQLite. Rows are buffered and inserted
+    /// <see cref="RowsPerStatement"/> at a time by one multi-row INSERT: each statement step has a fixed cost (cursor
+    /// opening, reset, the native calls' handle checks) that is then paid once per group of rows; the last rows go
+    /// through the one-row statement.
     /// </summary>
     private sealed class SqliteNative : BulkInserter
     {
+        /// <summary>Rows per multi-row INSERT (10 values each, well under SQLite's 32,766 parameter limit).</summary>
+        internal const int RowsPerStatement = 32;
+
+        private const string Columns = "INSERT INTO observations (upload_id, star_id, line, time, time_scale, band, mag, mag_err, observer, flag) VALUES ";
+
         private readonly sqlite3 _db;
-        private readonly sqlite3_stmt _stmt;
-        private readonly long _uploadId;
+        private readonly Prepared _one;
+        private readonly Prepared _many;
         private readonly long _cacheBefore;
         private readonly Dictionary<string, byte[]> _utf8 = new(StringComparer.Ordinal);
+        // Texts usually arrive as the parser's interned instances: looked up by reference first (no hashing of content).
+        private readonly Dictionary<string, byte[]> _utf8ByInstance = new(ReferenceEqualityComparer.Instance);
+        private readonly ObservationToStore[] _pending = new ObservationToStore[RowsPerStatement];
+        private int _inPending;
         private bool _disposed;
+
+        /// <summary>
+        /// A prepared statement and the text instance last bound to each parameter: SQLite keeps bindings across
+        /// resets, so a text equal (same instance) to the one already bound is not bound again; the upload id, the
+        /// same for every row, is bound once.
+        /// </summary>
+        private sealed class Prepared
+        {
+            public readonly sqlite3_stmt Stmt;
+            public readonly object?[] Bound;
+
+            public Prepared(sqlite3 db, int rows, long uploadId)
+            {
+                Check(db, raw.sqlite3_prepare_v2(db, Columns + Values(rows), out Stmt));
+                Bound = new object?[rows * 10 + 1];
+                for (int i = 0; i < rows; i++) Check(db, raw.sqlite3_bind_int64(Stmt, i * 10 + 1, uploadId));
+            }
+        }
+
+        private static readonly object NullBound = new();
 
         public SqliteNative(SqliteConnection c, long uploadId)
         {
             _db = c.Handle ?? throw new InvalidOperationException("The SQLite connection is not open.");
-            _uploadId = uploadId;
             // A large upload outgrows SQLite's default 2 MB page cache: dirty pages then spill to the WAL and are read
             // back for every index insert (most of the time went to read/write syscalls). 64 MB keeps the hot leaves of
             // the table and the star index in memory; restored on dispose since pooled connections are reused.
             _cacheBefore = PragmaCacheSize(_db);
             Exec(_db, "PRAGMA cache_size=-65536");
-            Check(_db, raw.sqlite3_prepare_v2(_db, """
-                INSERT INTO observations (upload_id, star_id, line, time, time_scale, band, mag, mag_err, observer, flag)
-                VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10)
-                """, out _stmt));
+            _one = new Prepared(_db, 1, uploadId);
+            _many = new Prepared(_db, RowsPerStatement, uploadId);
+        }
+
+        private static string Values(int rows)
+        {
+            var sb = new System.Text.StringBuilder();
+            for (int i = 0; i < rows; i++)
+            {
+                if (i > 0) sb.Append(',');
+                sb.Append("(?,?,?,?,?,?,?,?,?,?)");
+            }
+            return sb.ToString();
         }
 
         private byte[] Bytes(string s)
         {
-            if (!_utf8.TryGetValue(s, out var b))
+            if (_utf8ByInstance.TryGetValue(s, out var b)) return b;
+            if (!_utf8.TryGetValue(s, out b))
             {
                 b = System.Text.Encoding.UTF8.GetBytes(s);
                 // Strings seen once (e.g. free-text flags) are not worth keeping.
                 if (_utf8.Count < 4096) _utf8[s] = b;
             }
+            if (_utf8ByInstance.Count < 4096) _utf8ByInstance[s] = b;
             return b;
         }
 
         public override void Add(in ObservationToStore r)
         {
-            var stmt = _stmt;
-            raw.sqlite3_bind_int64(stmt, 1, _uploadId);
-            raw.sqlite3_bind_int64(stmt, 2, r.StarId);
-            raw.sqlite3_bind_int64(stmt, 3, r.Line);
-            raw.sqlite3_bind_double(stmt, 4, r.Time);
-            raw.sqlite3_bind_text(stmt, 5, Bytes(r.Scale.ToCode()));
-            raw.sqlite3_bind_text(stmt, 6, Bytes(r.Band));
-            raw.sqlite3_bind_double(stmt, 7, r.Mag);
-            raw.sqlite3_bind_double(stmt, 8, r.MagErr);
-            raw.sqlite3_bind_text(stmt, 9, Bytes(r.Observer));
-            if (r.Flag is null) raw.sqlite3_bind_null(stmt, 10);
-            else raw.sqlite3_bind_text(stmt, 10, Bytes(r.Flag));
+            _pending[_inPending++] = r;
+            if (_inPending < RowsPerStatement) return;
+            for (int i = 0; i < RowsPerStatement; i++) Bind(_many, i * 10, _pending[i]);
+            Step(_many.Stmt);
+            _inPending = 0;
+        }
+
+        private void Bind(Prepared p, int first, in ObservationToStore r)
+        {
+            var stmt = p.Stmt;
+            raw.sqlite3_bind_int64(stmt, first + 2, r.StarId);
+            raw.sqlite3_bind_int64(stmt, first + 3, r.Line);
+            raw.sqlite3_bind_double(stmt, first + 4, r.Time);
+            BindText(p, first + 5, r.Scale.ToCode());
+            BindText(p, first + 6, r.Band);
+            raw.sqlite3_bind_double(stmt, first + 7, r.Mag);
+            raw.sqlite3_bind_double(stmt, first + 8, r.MagErr);
+            BindText(p, first + 9, r.Observer);
+            if (r.Flag is not null) BindText(p, first + 10, r.Flag);
+            else if (!ReferenceEquals(p.Bound[first + 10], NullBound))
+            {
+                raw.sqlite3_bind_null(stmt, first + 10);
+                p.Bound[first + 10] = NullBound;
+            }
+        }
+
+        private void BindText(Prepared p, int index, string text)
+        {
+            if (ReferenceEquals(p.Bound[index], text)) return;
+            // Copied by SQLite (transient), so the binding stays valid after the bytes' array is reused.
+            raw.sqlite3_bind_text(p.Stmt, index, Bytes(text));
+            p.Bound[index] = text;
+        }
+
+        private void Step(sqlite3_stmt stmt)
+        {
             int rc = raw.sqlite3_step(stmt);
             raw.sqlite3_reset(stmt);
             if (rc != raw.SQLITE_DONE) Check(_db, rc);
         }
 
-        public override void Complete() { }
+        // The rows still buffered, in order, through the one-row statement (ids keep the file order).
+        public override void Complete()
+        {
+            for (int i = 0; i < _inPending; i++)
+            {
+                Bind(_one, 0, _pending[i]);
+                Step(_one.Stmt);
+            }
+            _inPending = 0;
+        }
 
         public override void Dispose()
         {
             if (_disposed) return;
             _disposed = true;
-            _stmt.Dispose();
+            _one.Stmt.Dispose();
+            _many.Stmt.Dispose();
             Exec(_db, "PRAGMA cache_size=" + _cacheBefore.ToString(System.Globalization.CultureInfo.InvariantCulture));
+        }
+    }
+
+    /// <summary>Fewest incoming rows for which <see cref="DeferIndexes"/> considers rebuilding.</summary>
+    internal const long MinRowsToRebuildIndexes = 50_000;
+
+    /// <summary>
+    /// SQLite, a bulk load at least a quarter of the table's size: drops the indexes of observations inside
+    /// <paramref name="tx"/> and returns their definitions, for <see cref="RestoreIndexes"/> to build again in the same
+    /// transaction after the rows. Inserting rows of many stars interleaved into the star index costs ~5 us per row
+    /// (a B-tree descent and mid-tree page splits), building it from the finished table ~0.4 us per table row (a sort;
+    /// docs/PERFORMANCE.md): with incoming rows at least a quarter of the table (upper bound: its largest id), the
+    /// rebuild costs at most ~2 us per incoming row. Safe: SQLite's DDL is transactional and the writer holds the write
+    /// lock, so other connections (WAL readers) keep seeing the committed schema with its indexes, and a rollback
+    /// restores them; the indexes are rebuilt from the stored SQL, exactly as the migrations created them. Else
+    /// (PostgreSQL, small loads) returns an empty list and changes nothing.
+    /// </summary>
+    public static IReadOnlyList<string> DeferIndexes(DbConnection c, DbTransaction tx, long incomingRows)
+    {
+        if (c is not SqliteConnection || incomingRows < MinRowsToRebuildIndexes) return [];
+        long existing = c.ExecuteScalar<long>("SELECT COALESCE(MAX(id), 0) FROM observations", transaction: tx);
+        if (incomingRows < existing / 4) return [];
+        var indexes = c.Query<(string Name, string Sql)>(
+            "SELECT name, sql FROM sqlite_master WHERE type = 'index' AND tbl_name = 'observations' AND sql IS NOT NULL ORDER BY name",
+            transaction: tx).ToList();
+        foreach (var (name, _) in indexes) c.Execute("DROP INDEX \"" + name.Replace("\"", "\"\"", StringComparison.Ordinal) + "\"", transaction: tx);
+        return indexes.Select(i => i.Sql).ToList();
+    }
+
+    /// <summary>Builds again, in <paramref name="tx"/>, the indexes <see cref="DeferIndexes"/> dropped.</summary>
+    public static void RestoreIndexes(DbConnection c, DbTransaction tx, IReadOnlyList<string> definitions)
+    {
+        if (definitions.Count == 0) return;
+        // CREATE INDEX sorts in memory up to the cache size and merges sorted runs from temporary files past it.
+        // 16 MB: the bulk insert's 64 MB of cached pages are released first (a 1 GB upload peaked ~50 MB higher with
+        // the sort at 64 MB, no faster: docs/PERFORMANCE.md), while the default 2 MB made many small runs.
+        long before = c.ExecuteScalar<long>("PRAGMA cache_size", transaction: tx);
+        c.Execute("PRAGMA cache_size=-16384", transaction: tx);
+        try
+        {
+            foreach (var sql in definitions) c.Execute(sql, transaction: tx);
+        }
+        finally
+        {
+            c.Execute("PRAGMA cache_size=" + before.ToString(System.Globalization.CultureInfo.InvariantCulture), transaction: tx);
         }
     }
 

@@ -80,8 +80,10 @@ public static class UploadParsing
 
     /// <summary>
     /// Reads a spooled photometry file with the same checks as <see cref="ReadPhotometry"/> but keeps only the first
-    /// <paramref name="previewRows"/> accepted rows: memory does not grow with the file (apart from the parser's
-    /// duplicate index, 16 bytes per row).
+    /// <paramref name="previewRows"/> accepted rows. Memory does not grow with the file: the duplicate check keeps the
+    /// latest time of each (star, band, observer) group, which is exact while a group's times strictly increase; when
+    /// some groups go back in time the file is read again with a full index for those groups only (memory then grows
+    /// with their rows), until a reading finds no new such group. The summary returned is that of the last reading.
     /// </summary>
     public static ValidatedPhotometry ValidatePhotometry(SpooledFile f, TimeScale scale, double offset, IReadOnlySet<string>? knownStars,
         string? star, string? band, string? observer, int maxRows, int previewRows = 10)
@@ -95,22 +97,38 @@ public static class UploadParsing
             columns = format == "plain" ? ["time", "mag", "mag_err"] : HeaderColumns(head);
         }
         var preview = new List<PhotometryRow>(previewRows);
-        var summary = Stream(f, format, scale, offset, knownStars, star, band, observer, maxRows, batch =>
+        var fullyIndexed = new HashSet<DuplicateGroup>();
+        while (true)
         {
-            for (int i = 0; i < batch.Length && preview.Count < previewRows; i++) preview.Add(batch[i]);
-        });
-        return new ValidatedPhotometry(f, format, columns, summary, preview);
+            preview.Clear();
+            var options = Options(scale, offset, knownStars, observer, maxRows) with { FullyIndexedGroups = fullyIndexed };
+            var summary = Stream(f, format, options, star, band, batch =>
+            {
+                for (int i = 0; i < batch.Length && preview.Count < previewRows; i++) preview.Add(batch[i]);
+            });
+            // A fully indexed group is never listed, so each new reading indexes more groups: this ends.
+            if (summary.OutOfOrderGroups.Count == 0) return new ValidatedPhotometry(f, format, columns, summary, preview);
+            fullyIndexed.UnionWith(summary.OutOfOrderGroups);
+        }
     }
 
-    /// <summary>Reads a validated spooled file again, pushing its accepted rows in batches (for storing).</summary>
+    /// <summary>
+    /// Reads a validated spooled file again, pushing its accepted rows in batches (for storing). Only for a file whose
+    /// validation found no error, with the same arguments: the duplicate check is skipped (the spooled bytes are the
+    /// ones validated, and a clean validation rejected no row as a duplicate, so every row passing the other checks
+    /// is accepted either way; the store compares the row count with the validated one).
+    /// </summary>
     public static IngestSummary StreamPhotometry(ValidatedPhotometry v, TimeScale scale, double offset, IReadOnlySet<string>? knownStars,
         string? star, string? band, string? observer, int maxRows, RowBatchHandler<PhotometryRow> onBatch)
-        => Stream(v.File, v.Format, scale, offset, knownStars, star, band, observer, maxRows, onBatch);
-
-    private static IngestSummary Stream(SpooledFile f, string format, TimeScale scale, double offset, IReadOnlySet<string>? knownStars,
-        string? star, string? band, string? observer, int maxRows, RowBatchHandler<PhotometryRow> onBatch)
     {
-        var options = Options(scale, offset, knownStars, observer, maxRows);
+        if (!v.Summary.IsSuccess) throw new InvalidOperationException($"File '{v.File.FileName}' did not validate; it cannot be stored.");
+        var options = Options(scale, offset, knownStars, observer, maxRows) with { RejectDuplicates = false };
+        return Stream(v.File, v.Format, options, star, band, onBatch);
+    }
+
+    private static IngestSummary Stream(SpooledFile f, string format, PhotometryParseOptions options, string? star, string? band,
+        RowBatchHandler<PhotometryRow> onBatch)
+    {
         using var stream = new FileStream(f.Path, FileMode.Open, FileAccess.Read, FileShare.Read, 1 << 16, FileOptions.SequentialScan);
         return format == "plain"
             ? PlainTextPhotometry.Parse(stream, f.FileName, star ?? "", band ?? "", options, onBatch)

@@ -94,6 +94,85 @@ public sealed class StorageSuiteTests
         Assert.Single(c.Query<long>("SELECT id FROM uploads WHERE kind = 'photometry'"));
     }
 
+    // Rows of several stars interleaved, as in a nightly file sorted by time (common practice).
+    private static PhotometryFile Interleaved(string sha, string[] stars, int n) => new("big.csv", sha, TimeScale.JdUtc, 0,
+        Enumerable.Range(0, n).Select(i => new PhotometryRow(stars[i % stars.Length],
+            new Observation(0, 2460000.5 + i * 1e-4, TimeScale.JdUtc, i % 2 == 0 ? "V" : "I", 15 + 0.001 * (i % 97), 0.02, "obs-" + (i % 3), null), i + 2)).ToList());
+
+    private static List<string> ObservationIndexes(System.Data.Common.DbConnection c) =>
+        c.Query<string>("SELECT sql FROM sqlite_master WHERE type = 'index' AND tbl_name = 'observations' AND sql IS NOT NULL ORDER BY name").ToList();
+
+    [Theory]
+    [MemberData(nameof(TestDatabases.Dialects), MemberType = typeof(TestDatabases))]
+    public void Store_KeepsFileOrderPerStarAndTheIndexes_WhenABulkLoadIsLargerThanTheTable(string dialect)
+    {
+        var db = Fresh(dialect);
+        List<string>? indexesBefore = null;
+        if (dialect == "sqlite") using (var c0 = db.Open()) indexesBefore = ObservationIndexes(c0);
+        UploadWriter.Store(db, Stars("S1", "S2", "S3"), [Photometry("sha-small", "S2", 10)], "tester", Clock);
+        // Larger than the table and than ObservationStore's threshold: on SQLite the indexes are rebuilt after the rows.
+        int n = (int)ObservationStore.MinRowsToRebuildIndexes + 1001;
+        var big = Interleaved("sha-big", ["S1", "S2", "S3"], n);
+        var outcome = UploadWriter.Store(db, null, [big], "tester", Clock);
+        Assert.Equal(n, outcome.ObservationsAdded);
+        using var c = db.Open();
+        var ids = StarStore.IdsByName(c);
+        foreach (var (name, k) in new[] { ("S1", 0), ("S2", 1), ("S3", 2) })
+        {
+            var back = ObservationStore.ForStar(c, ids[name]);
+            var want = big.Rows.Where((_, i) => i % 3 == k).Select(r => r.Observation.Time).ToList();
+            if (name == "S2") want = [.. Photometry("sha-small", "S2", 10).Rows.Select(r => r.Observation.Time), .. want];
+            Assert.Equal(want, back.Select(o => o.Time).ToList());
+        }
+        Assert.Equal(n + 10, ObservationStore.Count(c));
+        if (dialect == "sqlite")
+        {
+            Assert.Equal(indexesBefore, ObservationIndexes(c));
+            Assert.Empty(c.Query("PRAGMA foreign_key_check"));
+            Assert.Equal(1L, c.ExecuteScalar<long>("PRAGMA foreign_keys"));
+            // The star index answers the per-star query again.
+            Assert.Contains("ix_observations_star", c.Query("EXPLAIN QUERY PLAN SELECT id FROM observations WHERE star_id = 1").Select(r => (string)((IDictionary<string, object>)r)["detail"]).Single());
+        }
+    }
+
+    [Theory]
+    [MemberData(nameof(TestDatabases.Dialects), MemberType = typeof(TestDatabases))]
+    public void Store_RoundTripsEveryText_WhenFlagsBandsAndObserversChangeBetweenRows(string dialect)
+    {
+        // Several multi-row statements plus a remainder: each slot sees texts change, repeat and turn null.
+        var db = Fresh(dialect);
+        string[] observers = ["ann", "bob", "cy", ""];
+        var phot = new PhotometryFile("mix.csv", "sha-mix", TimeScale.JdUtc, 0, Enumerable.Range(0, 203).Select(i => new PhotometryRow(i % 7 == 0 ? "S2" : "S1",
+            new Observation(0, 2460000.5 + i, TimeScale.JdUtc, (i / 5) % 3 == 0 ? "V" : (i / 5) % 3 == 1 ? "I" : "B", 15 + 0.01 * i, 0.02,
+                observers[(i / 3) % 4], i % 5 == 0 ? "flag-" + (i % 3) : i % 11 == 0 ? new string('x', i % 4 + 1) : null), i + 2)).ToList());
+        UploadWriter.Store(db, Stars("S1", "S2"), [phot], "tester", Clock);
+        using var c = db.Open();
+        var ids = StarStore.IdsByName(c);
+        foreach (var star in new[] { "S1", "S2" })
+        {
+            var want = phot.Rows.Where(r => r.Star == star).Select(r => (r.Observation.Time, r.Observation.Band, r.Observation.Observer, r.Observation.Flag)).ToList();
+            var back = ObservationStore.ForStar(c, ids[star]).Select(o => (o.Time, o.Band, o.Observer, o.Flag)).ToList();
+            Assert.Equal(want, back);
+        }
+    }
+
+    [Fact]
+    public void Store_KeepsIndexesAndStoresNothing_WhenABulkLoadFailsAfterTheIndexesWereDropped()
+    {
+        var db = Fresh("sqlite");
+        UploadWriter.Store(db, Stars("S1", "S2"), [Photometry("sha-a", "S1", 10)], "tester", Clock);
+        List<string> before;
+        using (var c0 = db.Open()) before = ObservationIndexes(c0);
+        var big = Interleaved("sha-big", ["S1", "S2"], (int)ObservationStore.MinRowsToRebuildIndexes + 10);
+        // The last row names a star missing from the database: the writer throws after most rows were inserted.
+        var bad = big with { Rows = [.. big.Rows, new PhotometryRow("nobody", new Observation(0, 2461000, TimeScale.JdUtc, "V", 15, 0.02, "", null), 999_999)] };
+        Assert.Throws<InvalidOperationException>(() => UploadWriter.Store(db, null, [bad], "tester", Clock));
+        using var c = db.Open();
+        Assert.Equal(10, ObservationStore.Count(c));
+        Assert.Equal(before, ObservationIndexes(c));
+        Assert.NotEmpty(before);
+    }
+
     [Theory]
     [MemberData(nameof(TestDatabases.Dialects), MemberType = typeof(TestDatabases))]
     public void AnalysisUpsert_LeavesOneRow_WhenRunTwice(string dialect)

@@ -17,6 +17,13 @@ public sealed record IngestSummary(
 {
     /// <summary>True when nothing was rejected and the whole file was read.</summary>
     public bool IsSuccess => Errors.Count == 0 && !Stopped;
+
+    /// <summary>
+    /// Groups whose times went back without a full duplicate index (only when
+    /// <see cref="PhotometryParseOptions.FullyIndexedGroups"/> is set): their later rows were not checked for
+    /// duplicates, so this reading is incomplete and must be repeated with them fully indexed. Empty otherwise.
+    /// </summary>
+    public IReadOnlyList<DuplicateGroup> OutOfOrderGroups { get; init; } = [];
 }
 
 /// <summary>Accepted rows plus the <see cref="IngestSummary"/> of one file. Expected failures live in Errors; parsers do not throw on bad input.</summary>

@@ -97,7 +97,7 @@ public static class PhotometryCsv
             }
         }
         if (inBatch > 0) onBatch(batch.AsSpan(0, inBatch));
-        return issues.Summary(accepted, table.LineNumber);
+        return check.Summary(accepted, table.LineNumber);
     }
 
     internal static StreamReader OpenText(Stream stream)

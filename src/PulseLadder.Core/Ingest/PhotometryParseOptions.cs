@@ -32,6 +32,15 @@ public sealed record PhotometryParseOptions
     /// <summary>Reject rows with the same star, time (after offset), band and observer as an earlier row of the same file.</summary>
     public bool RejectDuplicates { get; init; } = true;
 
+    /// <summary>
+    /// Null (the default): every (star, band, observer) group gets a full duplicate index, which finds every duplicate
+    /// in one reading at about 12 bytes per row. Set (even empty): only the listed groups are fully indexed; the others
+    /// keep their latest time only, which is exact while their times strictly increase. A group that goes back in time
+    /// is listed in <see cref="IngestSummary.OutOfOrderGroups"/> and its later rows are not checked for duplicates: read
+    /// the file again with those groups added until none is listed (the summary of that last reading is exact).
+    /// </summary>
+    public IReadOnlySet<DuplicateGroup>? FullyIndexedGroups { get; init; }
+
     public IngestLimits Limits { get; init; } = IngestLimits.Default;
 
     /// <summary>Faintest/brightest magnitude accepted.</summary>
@@ -40,6 +49,9 @@ public sealed record PhotometryParseOptions
     /// <summary>Largest mag_err accepted, in magnitudes.</summary>
     public const double MaxMagErr = 5;
 }
+
+/// <summary>Rows that share a star, band (normalised) and observer: a duplicate repeats the time of one of them.</summary>
+public readonly record struct DuplicateGroup(string Star, string Band, string Observer);
 
 /// <summary>Reads the per-upload metadata as a user types it (e.g. form fields or CLI options).</summary>
 public static class UploadMetadata

@@ -18,7 +18,25 @@ internal sealed class PhotometryRowChecker
         _options = options;
         _issues = issues;
         _bandLookup = _bands.GetAlternateLookup<ReadOnlySpan<char>>();
-        if (options.RejectDuplicates) _seen = new DuplicateIndex();
+        if (!options.RejectDuplicates) return;
+        if (options.FullyIndexedGroups is not { } full) _seen = new DuplicateIndex();
+        else
+        {
+            // Symbol ids are handed out before the duplicate check, so the texts of a new group are known here.
+            _seen = new DuplicateIndex((star, band, observer) =>
+                full.Count > 0 && full.Contains(new DuplicateGroup(_symbols.Text(star), _symbols.Text(band), _symbols.Text(observer))));
+        }
+    }
+
+    /// <summary>The summary of the reading, with the groups that went back in time unindexed.</summary>
+    public IngestSummary Summary(long accepted, long linesRead)
+    {
+        var summary = _issues.Summary(accepted, linesRead);
+        if (_seen is null || _seen.OutOfOrder.Count == 0) return summary;
+        return summary with
+        {
+            OutOfOrderGroups = _seen.OutOfOrder.Select(g => new DuplicateGroup(_symbols.Text(g.Star), _symbols.Text(g.Band), _symbols.Text(g.Observer))).ToArray(),
+        };
     }
 
     /// <summary>Free text (flags): one instance per distinct text up to the pool's cap.</summary>

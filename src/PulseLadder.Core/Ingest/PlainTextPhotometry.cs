@@ -107,7 +107,7 @@ public static class PlainTextPhotometry
             }
         }
         if (inBatch > 0) onBatch(batch.AsSpan(0, inBatch));
-        return issues.Summary(accepted, lines.LineNumber);
+        return check.Summary(accepted, lines.LineNumber);
     }
 
     /// <summary>Splits on runs of spaces and tabs; returns the token count (which may exceed the span's capacity).</summary>

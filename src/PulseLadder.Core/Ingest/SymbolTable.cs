@@ -26,6 +26,9 @@ internal sealed class SymbolTable
         return Add(text, out id);
     }
 
+    /// <summary>The text of an id handed out before.</summary>
+    public string Text(int id) => _texts[id];
+
     private string Add(string s, out int id)
     {
         id = _texts.Count;
