@@ -1,6 +1,6 @@
 #!/usr/bin/env bash
 # The whole PulseLadder test suite on a fresh Debian machine: installs what the tests need (PostgreSQL, Chromium and
-# python3-astropy (+ python3-pil, to decode figures) from Debian's packages; uPlot from the npm registry through the build), starts a throw-away
+# python3-astropy (+ python3-scipy for its false-alarm statistics, python3-pil to decode figures) from Debian's packages; uPlot from the npm registry through the build), starts a throw-away
 # PostgreSQL on 127.0.0.1, reruns the reference-library comparisons, then runs every test project.
 set -eo pipefail
 set -u
@@ -12,7 +12,7 @@ need=()
 command -v chromium >/dev/null 2>&1 || need+=(chromium)
 command -v npm >/dev/null 2>&1 || need+=(npm)
 ls /usr/lib/postgresql/*/bin/initdb >/dev/null 2>&1 || need+=(postgresql)
-/usr/bin/python3 -c "import astropy, numpy" >/dev/null 2>&1 || need+=(python3-astropy python3-numpy)
+/usr/bin/python3 -c "import astropy, numpy, scipy" >/dev/null 2>&1 || need+=(python3-astropy python3-numpy python3-scipy)
 /usr/bin/python3 -c "import PIL" >/dev/null 2>&1 || need+=(python3-pil)
 if [ ${#need[@]} -gt 0 ]; then
   echo "== installing from Debian: ${need[*]}"
