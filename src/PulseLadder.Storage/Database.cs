@@ -67,7 +67,10 @@ public sealed class Database
             c.Open();
             using var cmd = c.CreateCommand();
             // WAL lets readers (web pages) run while a job writes; foreign keys are off by default in SQLite.
-            cmd.CommandText = "PRAGMA journal_mode=WAL; PRAGMA foreign_keys=ON; PRAGMA synchronous=NORMAL;";
+            // busy_timeout: a writer that meets another's lock waits inside SQLite (sleeps of 1-100 ms, retried as
+            // soon as the lock is free) instead of returning "busy" to Microsoft.Data.Sqlite, whose own retry waited
+            // far longer: two analysis threads went from 1.3x to 1.9x one thread (docs/PERFORMANCE.md).
+            cmd.CommandText = "PRAGMA journal_mode=WAL; PRAGMA foreign_keys=ON; PRAGMA synchronous=NORMAL; PRAGMA busy_timeout=60000;";
             cmd.ExecuteNonQuery();
             return c;
         }
