@@ -78,7 +78,7 @@ public sealed class BenchThroughputCommand : Command<BenchThroughputCommand.Sett
             if (parts.Contains("queue"))
             {
                 double mem = QueueCost("inmemory", new InMemoryStorage(), s.QueueJobs);
-                if (jobMs is { } j) Console.WriteLine(F($"  in-memory queue: {100 * mem / j:F2}% of the {j:F2} ms analysis job"));
+                if (jobMs is { } j) Console.WriteLine(F($"  in-memory queue: {100 * mem / j:F2}% of one star's {j:F2} ms analysis; {100 * mem / (j * new JobsOptions().EffectiveBatchSize):F2}% of a default batch of {new JobsOptions().EffectiveBatchSize} stars"));
                 if (s.Postgres is not null)
                 {
                     string cs = CreateDatabase(s.Postgres, "plx_bench_queue");
@@ -88,7 +88,8 @@ public sealed class BenchThroughputCommand : Command<BenchThroughputCommand.Sett
                         UseSlidingInvisibilityTimeout = true, QueuePollInterval = TimeSpan.FromMilliseconds(200),
                     };
                     double pg = QueueCost("postgres", new PostgreSqlStorage(new NpgsqlConnectionFactory(cs, opts), opts), s.QueueJobs);
-                    if (jobMs is { } j2) Console.WriteLine(F($"  PostgreSQL queue: {100 * pg / j2:F2}% of the {j2:F2} ms analysis job"));
+                    int batch = new JobsOptions { Storage = "postgres" }.EffectiveBatchSize;
+                    if (jobMs is { } j2) Console.WriteLine(F($"  PostgreSQL queue: {100 * pg / j2:F2}% of one star's {j2:F2} ms analysis; {100 * pg / (j2 * batch):F2}% of a default batch of {batch} stars"));
                     DropDatabase(s.Postgres, cs);
                 }
             }
