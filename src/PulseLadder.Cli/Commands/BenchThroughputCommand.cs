@@ -374,7 +374,8 @@ public sealed class BenchThroughputCommand : Command<BenchThroughputCommand.Sett
             else
             {
                 cs = CreateDatabase(admin!, "plx_bench_e2e");
-                procs.Add(Start(work, mode + "-web.log", "serve", "--single-user", "--urls", url, "--database", "postgres:" + cs, "--jobs", "postgres", "--no-jobs"));
+                procs.Add(Start(work, mode + "-web.log", "serve", "--single-user", "--urls", url, "--database", "postgres:" + cs, "--jobs", "postgres", "--no-jobs",
+                    "--data-dir", Path.Combine(work, mode)));
             }
             using var http = new HttpClient { BaseAddress = new Uri(url), Timeout = TimeSpan.FromMinutes(30) };
             WaitHealthy(http, procs[0]);
