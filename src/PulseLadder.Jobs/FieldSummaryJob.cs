@@ -19,6 +19,8 @@ public sealed class FieldSummaryJob(Database db, TimeProvider clock, Calibration
     /// <summary>With the embedded calibration registry only.</summary>
     public FieldSummaryJob(Database db, TimeProvider clock) : this(db, clock, CalibrationRegistry.Embedded, NullLogger<FieldSummaryJob>.Instance) { }
 
+    private static readonly string SearchProperty = Json.Options.PropertyNamingPolicy!.ConvertName(nameof(StarAnalysis.Search));
+
     [Queue("summary")]
     [AutomaticRetry(Attempts = 3)]
     public void Run(long fieldId)
@@ -30,7 +32,7 @@ public sealed class FieldSummaryJob(Database db, TimeProvider clock, Calibration
         var stars = StarStore.ListByField(c, fieldId).Where(s => s.ReviewState == ReviewStates.Accepted).ToDictionary(s => s.Id);
         var analyses = AnalysisStore.LatestForField(c, fieldId, PipelineVersion.Current, withJson: true)
             .Where(a => stars.ContainsKey(a.StarId))
-            .Select(a => Json.Deserialize<StarAnalysis>(a.ResultJson)!)
+            .Select(a => Json.DeserializeWithoutCurves<StarAnalysis>(a.ResultJson)!)
             .ToList();
         var summary = FieldSummaries.Compute(analyses, registry);
         using var tx = c.BeginTransaction();
@@ -59,7 +61,9 @@ public sealed class FieldSummaryJob(Database db, TimeProvider clock, Calibration
         var stars = StarStore.ListByField(c, fieldId).Where(s => s.ReviewState != ReviewStates.Rejected).ToDictionary(s => s.Id);
         var current = AnalysisStore.LatestForField(c, fieldId, PipelineVersion.Current, withJson: true)
             .Where(a => stars.TryGetValue(a.StarId, out var s) && s.Revision == a.Revision)
-            .Select(a => (Row: a, Result: Json.Deserialize<StarAnalysis>(a.ResultJson)))
+            // Without the plotted curves (most of each result's text; the pass never reads them): they are put back
+            // from the stored text when a row is rewritten.
+            .Select(a => (Row: a, Result: Json.DeserializeWithoutCurves<StarAnalysis>(a.ResultJson)))
             .Where(x => x.Result is not null)
             .ToList();
         FieldContext? context = FieldPass.BuildContext(current.Select(x => x.Result!));
@@ -70,7 +74,12 @@ public sealed class FieldSummaryJob(Database db, TimeProvider clock, Calibration
             var star = stars[row.StarId];
             var info = StarStore.ToStarInfo(star);
             var updated = FieldPass.Reclassify(result, info, context, registry);
+            // The pass rebuilds classes, distance and flags around the same search object: its stored text (with the
+            // curves) is the search of the new result.
+            if (!ReferenceEquals(updated.Search, result.Search))
+                throw new InvalidOperationException("The field pass changed a result's period search; its curves would be lost.");
             string json = Json.Serialize(updated);
+            if (updated.Search is not null) json = Json.WithPropertyFrom(json, SearchProperty, row.ResultJson);
             if (string.Equals(json, row.ResultJson, StringComparison.Ordinal)) continue;
             var observations = ObservationStore.ForStar(c, star.Id);
             string hash = AnalyzeStarJob.InputHash(info, observations, updated.Settings, updated.Overrides, updated.FieldContext, registry);

@@ -91,3 +91,46 @@ public sealed class CurveJsonTests
         Assert.Contains("two", e.Message);
     }
 }
+
+/// <summary>Reading stored results without their curves, and splicing a stored property back (the field pass).</summary>
+public sealed class ResultSplicingTests
+{
+    private sealed record Inner(string Name, Curve Periodogram, double Power);
+    private sealed record Outer(string Star, Inner? Search, IReadOnlyList<string> Flags, double Mu);
+
+    private static Outer Sample(double mu) => new("S-1",
+        new Inner("gls", new Curve([0.1, 0.2000001, 0.3], [0.00001, 0.5, 1]), 0.75), ["a", "b"], mu);
+
+    [Fact]
+    public void DeserializeWithoutCurves_ReadsEverythingButTheCurves()
+    {
+        string json = Json.Serialize(Sample(14.2));
+        var light = Json.DeserializeWithoutCurves<Outer>(json)!;
+        Assert.Empty(light.Search!.Periodogram.X);
+        Assert.Empty(light.Search.Periodogram.Y);
+        Assert.Equal(0.75, light.Search.Power);
+        Assert.Equal(["a", "b"], light.Flags);
+        Assert.Equal(14.2, light.Mu);
+    }
+
+    [Fact]
+    public void WithPropertyFrom_PutsBackTheStoredValue_ByteForByte()
+    {
+        string stored = Json.Serialize(Sample(14.2));
+        var light = Json.DeserializeWithoutCurves<Outer>(stored)!;
+        string rewritten = Json.Serialize(light with { Mu = 15.0 });
+        string spliced = Json.WithPropertyFrom(rewritten, "search", stored);
+        // The same text a full read-modify-write would give.
+        Assert.Equal(Json.Serialize(Json.Deserialize<Outer>(stored)! with { Mu = 15.0 }), spliced);
+        using var doc = System.Text.Json.JsonDocument.Parse(spliced);
+        Assert.Equal(3, doc.RootElement.GetProperty("search").GetProperty("periodogram").GetProperty("x").GetArrayLength());
+    }
+
+    [Fact]
+    public void WithPropertyFrom_MissingProperty_Throws()
+    {
+        string a = Json.Serialize(Sample(1));
+        Assert.Throws<ArgumentException>(() => Json.WithPropertyFrom(a, "nowhere", a));
+        Assert.Throws<ArgumentException>(() => Json.WithPropertyFrom("{\"x\":1}", "search", a));
+    }
+}

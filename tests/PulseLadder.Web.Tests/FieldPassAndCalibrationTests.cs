@@ -86,6 +86,11 @@ public sealed class FieldPassAndCalibrationTests
         var ctx = result.GetProperty("field_context");
         Assert.Equal(10, ctx.GetProperty("star_count").GetInt32());
         Assert.Equal(64, ctx.GetProperty("star_set_hash").GetString()!.Length);
+        // The pass rewrote the row from a copy read without the plotted curves: they are back, whole.
+        var search = result.GetProperty("search");
+        int plotted = search.GetProperty("periodogram").GetProperty("x").GetArrayLength();
+        Assert.True(plotted > 100, $"periodogram of {plotted} points after the field pass");
+        Assert.Equal(plotted, search.GetProperty("window").GetProperty("y").GetArrayLength());
 
         // The stored analysis, with its field context, reproduces (same class, numbers and input hash).
         var rep = Reproduction.Run(t.Db, "T2-01", 0, CalibrationRegistry.Embedded);

@@ -105,6 +105,25 @@ public sealed class FieldPassTests
     }
 
     [Fact]
+    public void Reclassify_KeptDistance_IsTheOneAFreshComputationGives()
+    {
+        // Every star of the field, through a stored (JSON) copy as the field job reads it: the pass that keeps an
+        // unchanged class's distance must write exactly what recomputing it writes; the star whose class changes
+        // (T2-01) gets a new distance either way.
+        var context = FieldPass.BuildContext(FirstPass.Value.Select(x => x.First));
+        int kept = 0;
+        foreach (var (star, first) in FirstPass.Value)
+        {
+            var stored = JsonSerializer.Deserialize<StarAnalysis>(JsonSerializer.Serialize(first))!;
+            var reused = FieldPass.Reclassify(stored, star.Info, context, CalibrationRegistry.Embedded);
+            var fresh = FieldPass.Reclassify(stored, star.Info, context, CalibrationRegistry.Embedded, reuseDistance: false);
+            Assert.Equal(JsonSerializer.Serialize(fresh), JsonSerializer.Serialize(reused));
+            if (ReferenceEquals(reused.Distance, stored.Distance)) kept++;
+        }
+        Assert.Equal(FirstPass.Value.Count - 1, kept);
+    }
+
+    [Fact]
     public void Run_ReproducesFieldPassResult_WhenGivenTheStoredContext()
     {
         var (star, first) = FirstPass.Value.Single(x => x.Star.Info.Name == "T2-01");
