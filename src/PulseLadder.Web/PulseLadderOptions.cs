@@ -17,6 +17,13 @@ public sealed class PulseLadderOptions
     /// <summary>Largest number of photometry rows per upload.</summary>
     public int MaxUploadRows { get; set; } = 20_000_000;
 
+    /// <summary>
+    /// Uploads whose photometry files total at most this many bytes keep their parsed rows from the validating reading
+    /// and are stored from memory (~3 bytes of memory per byte of CSV); larger ones are read a second time inside the
+    /// storing transaction, so memory stays flat however large the file. 0 always reads twice.
+    /// </summary>
+    public long InMemoryUploadBytes { get; set; } = 32L << 20;
+
     /// <summary>Sign-in and single-user mode (section PulseLadder:Auth).</summary>
     public Auth.AuthOptions Auth { get; set; } = new();
 
@@ -44,6 +51,7 @@ public sealed class PulseLadderOptions
             return $"Setting '{Section}:Database' must start with 'sqlite:' or 'postgres:'.";
         if (MaxUploadBytes < 1024) return $"Setting '{Section}:MaxUploadBytes' must be at least 1024.";
         if (MaxUploadRows < 1) return $"Setting '{Section}:MaxUploadRows' must be positive.";
+        if (InMemoryUploadBytes < 0) return $"Setting '{Section}:InMemoryUploadBytes' must be 0 or more.";
         return Auth.Validate() ?? Limits.Validate();
     }
 }

@@ -13,7 +13,11 @@ public sealed record SpooledFile(string FileName, string Path, string Sha256, lo
 /// Outcome of reading a spooled photometry file without keeping its rows: errors and counts, the first rows for the
 /// preview, and what is needed to read it again for storing.
 /// </summary>
-public sealed record ValidatedPhotometry(SpooledFile File, string Format, IReadOnlyList<string> Columns, IngestSummary Summary, IReadOnlyList<PhotometryRow> Preview);
+public sealed record ValidatedPhotometry(SpooledFile File, string Format, IReadOnlyList<string> Columns, IngestSummary Summary, IReadOnlyList<PhotometryRow> Preview)
+{
+    /// <summary>Every accepted row of the validating reading, when it was asked to keep them (small uploads); null otherwise.</summary>
+    public IReadOnlyList<PhotometryRow>? Rows { get; init; }
+}
 
 /// <summary>Parsed photometry of one file, or its errors.</summary>
 public sealed record ParsedPhotometry(string FileName, string Sha256, string Format, IReadOnlyList<string> Columns, ParseResult<PhotometryRow> Result);
@@ -85,8 +89,10 @@ public static class UploadParsing
     /// some groups go back in time the file is read again with a full index for those groups only (memory then grows
     /// with their rows), until a reading finds no new such group. The summary returned is that of the last reading.
     /// </summary>
+    /// <param name="keepRows">Keep every accepted row (<see cref="ValidatedPhotometry.Rows"/>) so storing needs no second
+    /// reading; for files small enough that their rows fit the memory budget (the caller decides by file size).</param>
     public static ValidatedPhotometry ValidatePhotometry(SpooledFile f, TimeScale scale, double offset, IReadOnlySet<string>? knownStars,
-        string? star, string? band, string? observer, int maxRows, int previewRows = 10)
+        string? star, string? band, string? observer, int maxRows, int previewRows = 10, bool keepRows = false)
     {
         string format;
         IReadOnlyList<string> columns;
@@ -98,16 +104,20 @@ public static class UploadParsing
         }
         var preview = new List<PhotometryRow>(previewRows);
         var fullyIndexed = new HashSet<DuplicateGroup>();
+        List<PhotometryRow>? rows = keepRows ? [] : null;
         while (true)
         {
             preview.Clear();
+            rows?.Clear();
             var options = Options(scale, offset, knownStars, observer, maxRows) with { FullyIndexedGroups = fullyIndexed };
             var summary = Stream(f, format, options, star, band, batch =>
             {
                 for (int i = 0; i < batch.Length && preview.Count < previewRows; i++) preview.Add(batch[i]);
+                rows?.AddRange(batch);
             });
             // A fully indexed group is never listed, so each new reading indexes more groups: this ends.
-            if (summary.OutOfOrderGroups.Count == 0) return new ValidatedPhotometry(f, format, columns, summary, preview);
+            if (summary.OutOfOrderGroups.Count == 0)
+                return new ValidatedPhotometry(f, format, columns, summary, preview) { Rows = summary.IsSuccess ? rows : null };
             fullyIndexed.UnionWith(summary.OutOfOrderGroups);
         }
     }
@@ -122,9 +132,19 @@ public static class UploadParsing
         string? star, string? band, string? observer, int maxRows, RowBatchHandler<PhotometryRow> onBatch)
     {
         if (!v.Summary.IsSuccess) throw new InvalidOperationException($"File '{v.File.FileName}' did not validate; it cannot be stored.");
+        if (v.Rows is { } kept)
+        {
+            // The validating reading kept its rows: hand them over in the parser's batch size instead of reading again.
+            var all = kept is List<PhotometryRow> list ? System.Runtime.InteropServices.CollectionsMarshal.AsSpan(list) : kept.ToArray();
+            for (int i = 0; i < all.Length; i += StoreBatchRows) onBatch(all.Slice(i, Math.Min(StoreBatchRows, all.Length - i)));
+            return v.Summary;
+        }
         var options = Options(scale, offset, knownStars, observer, maxRows) with { RejectDuplicates = false };
         return Stream(v.File, v.Format, options, star, band, onBatch);
     }
+
+    /// <summary>Rows per batch when kept rows are handed to the store.</summary>
+    private const int StoreBatchRows = 4096;
 
     private static IngestSummary Stream(SpooledFile f, string format, PhotometryParseOptions options, string? star, string? band,
         RowBatchHandler<PhotometryRow> onBatch)

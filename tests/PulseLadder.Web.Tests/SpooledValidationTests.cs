@@ -67,6 +67,44 @@ public class SpooledValidationTests
         }
     }
 
+    [Theory]
+    [InlineData(11)]
+    [InlineData(12)]
+    public void KeptRows_AreWhatTheSecondReadingStores_AndWhatTheFullIndexAccepts(int seed)
+    {
+        // A clean file (no bad values, no repeats) with groups going back in time, so validation reads it twice.
+        var rng = new Random(seed);
+        var sb = new StringBuilder("star,time,band,mag,mag_err,observer\n");
+        for (int i = 0; i < 3000; i++)
+            sb.Append(CultureInfo.InvariantCulture, $"S{rng.Next(3)},{11000 + i * 0.01 + (rng.Next(50) == 0 ? -5 - 0.000001 * i : 0):F6},{(rng.Next(2) == 0 ? "V" : "I")},{12 + rng.NextDouble():F3},0.01,o{rng.Next(3)}\n");
+        byte[] bytes = Encoding.UTF8.GetBytes(sb.ToString());
+        string path = Path.GetTempFileName();
+        try
+        {
+            File.WriteAllBytes(path, bytes);
+            var known = new HashSet<string> { "S0", "S1", "S2" };
+            var full = UploadParsing.ReadPhotometry(new IncomingFile("k.csv", bytes), TimeScale.JdUtc, 2450000, known, null, null, null, 1_000_000);
+            Assert.True(full.Result.Summary.IsSuccess);
+            var spooled = new SpooledFile("k.csv", path, ContentHash.Sha256Hex(bytes), bytes.Length);
+            var kept = UploadParsing.ValidatePhotometry(spooled, TimeScale.JdUtc, 2450000, known, null, null, null, 1_000_000, keepRows: true);
+            var streamedOnly = UploadParsing.ValidatePhotometry(spooled, TimeScale.JdUtc, 2450000, known, null, null, null, 1_000_000);
+            Assert.NotNull(kept.Rows);
+            Assert.Null(streamedOnly.Rows);
+            var fromMemory = new List<PhotometryRow>();
+            var fromFile = new List<PhotometryRow>();
+            UploadParsing.StreamPhotometry(kept, TimeScale.JdUtc, 2450000, known, null, null, null, 1_000_000, b => fromMemory.AddRange(b));
+            UploadParsing.StreamPhotometry(streamedOnly, TimeScale.JdUtc, 2450000, known, null, null, null, 1_000_000, b => fromFile.AddRange(b));
+            Assert.Equal(full.Result.Rows.Count, fromMemory.Count);
+            Assert.Equal(fromFile, fromMemory);
+            Assert.Equal(full.Result.Rows.Select(r => (r.Line, r.Star, r.Observation.Time, r.Observation.Mag)),
+                fromMemory.Select(r => (r.Line, r.Star, r.Observation.Time, r.Observation.Mag)));
+        }
+        finally
+        {
+            File.Delete(path);
+        }
+    }
+
     [Fact]
     public void StreamPhotometry_Refuses_WhenTheFileDidNotValidate()
     {

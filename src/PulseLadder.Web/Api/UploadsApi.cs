@@ -99,10 +99,11 @@ public static class UploadsApi
         int maxRows = options.Value.MaxUploadRows;
         long rowsSoFar = 0;
         var validated = new List<ValidatedPhotometry>();
+        bool keepRows = !preview && photFiles.Sum(f => f.Length) <= options.Value.InMemoryUploadBytes;
         foreach (var pf in photFiles)
         {
             int budget = (int)Math.Max(0, maxRows - rowsSoFar);
-            var v = UploadParsing.ValidatePhotometry(pf, scale, offset, known, Field("star"), Field("band"), Field("observer"), budget);
+            var v = UploadParsing.ValidatePhotometry(pf, scale, offset, known, Field("star"), Field("band"), Field("observer"), budget, keepRows: keepRows);
             if (v.Summary.Errors.Any(e => e.Code == IngestIssueCode.TooManyRows))
                 return TooLarge($"The photometry has more than {maxRows} rows in total (setting '{PulseLadderOptions.Section}:MaxUploadRows'); nothing was stored.");
             rowsSoFar += v.Summary.AcceptedRows + v.Summary.RejectedRows;
@@ -119,7 +120,8 @@ public static class UploadsApi
         if (preview)
             return TypedResults.Ok(new UploadResponse(null, false, false, reports, 0, 0, 0));
 
-        // Each file is read a second time inside the storing transaction, with the same checks, streaming its rows.
+        // Small uploads are stored from the rows their validation kept; larger files are read a second time inside the
+        // storing transaction, with the same checks, streaming their rows (PulseLadder:InMemoryUploadBytes).
         var photometry = validated.Select(v => new PhotometryFile(v.File.FileName, v.File.Sha256, scale, offset, [])
         {
             RowCount = v.Summary.AcceptedRows,
