@@ -19,15 +19,18 @@ public static class BarycentricTime
     /// Points that cannot be converted (UTC after the leap-second table's expiry, non-finite time) are returned as
     /// rejections of stage "time". Empty input gives an empty outcome. UTC values before 1960 are converted with
     /// TAI-UTC = 0 and counted in <see cref="TimeConversionOutcome.Method"/>. Output order follows the input.
+    /// The TT -> BJD_TDB step is interpolated between exact evaluations every 6 days (<see cref="TtToBjdInterpolator"/>,
+    /// within ~10 us of the exact chain).
     /// </summary>
     public static TimeConversionOutcome ToBjdTdb(IReadOnlyList<Observation> observations, SkyPosition position)
     {
         var points = new List<LightCurvePoint>(observations.Count);
         var rejected = new List<Rejection>();
         int preUtc = 0;
+        var tt = new TtToBjdInterpolator(position);
         foreach (var o in observations)
         {
-            var r = TimeConversion.Convert(o.Time, o.Scale, position);
+            var r = TimeConversion.Convert(o.Time, o.Scale, position, tt);
             if (r.BjdTdb is { } bjd)
             {
                 if (r.PreUtc) preUtc++;
