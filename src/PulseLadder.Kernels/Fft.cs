@@ -14,8 +14,8 @@ namespace PulseLadder.Kernels;
 /// </summary>
 internal sealed class Fft
 {
-    private readonly double[] _tw;   // per stage of length len (offset len/2 complex): interleaved exp(+2 pi i j / len), j < len/2
-    private readonly int[] _rev;     // bit-reversal partner for the first level of the permutation
+    private readonly double[]? _tw;  // scalar path: per stage of length len (offset len/2 complex): interleaved exp(+2 pi i j / len), j < len/2
+    private readonly int[]? _rev;    // scalar path: bit-reversal partner of every index
     private readonly bool _vector;
     private readonly VectorPlan? _vplan;
 
@@ -24,24 +24,51 @@ internal sealed class Fft
     {
         if (n < 2 || (n & (n - 1)) != 0) throw new ArgumentException("FFT size must be a power of two >= 2.", nameof(n));
         Size = n;
+        (double[] cos, double[] sin) = Roots(n);
+        _vector = allowVector && VectorSupported && n >= 4;
+        if (_vector)
+        {
+            _vplan = new VectorPlan(n, cos, sin);
+            return;
+        }
         // Contiguous table per stage so every stage reads its twiddles sequentially.
         _tw = new double[2 * n];
         for (int len = 2; len <= n; len <<= 1)
             for (int j = 0; j < len / 2; j++)
             {
-                (double s, double c) = Math.SinCos(2.0 * Math.PI * j / len);
-                _tw[2 * (len / 2 + j)] = c; _tw[2 * (len / 2 + j) + 1] = s;
+                _tw[2 * (len / 2 + j)] = cos[j * (n / len)]; _tw[2 * (len / 2 + j) + 1] = sin[j * (n / len)];
             }
-        int bits = System.Numerics.BitOperations.Log2((uint)n);
-        _rev = new int[n];
-        for (int i = 0; i < n; i++)
+        _rev = BitReversal(n);
+    }
+
+    /// <summary>
+    /// exp(2 pi i k / n) for k &lt; n: Math.SinCos for the first octant, the rest by the exact symmetries
+    /// (swap of cos and sin about pi/4, multiplication by i per quadrant), so the plan costs n/8 SinCos calls, not
+    /// several n (plans are built per grid size and the NUFFT grid changes with the star), at the same accuracy.
+    /// </summary>
+    private static (double[] Cos, double[] Sin) Roots(int n)
+    {
+        var c = new double[n];
+        var s = new double[n];
+        if (n < 16)
         {
-            int r = 0, v = i;
-            for (int b = 0; b < bits; b++) { r = (r << 1) | (v & 1); v >>= 1; }
-            _rev[i] = r;
+            for (int k = 0; k < n; k++) (s[k], c[k]) = Math.SinCos(2.0 * Math.PI * k / n);
+            return (c, s);
         }
-        _vector = allowVector && VectorSupported && n >= 4;
-        if (_vector) _vplan = new VectorPlan(n, _rev);
+        int q = n / 4, o = n / 8;
+        for (int k = 0; k <= o; k++) (s[k], c[k]) = Math.SinCos(2.0 * Math.PI * k / n);
+        for (int k = o + 1; k < q; k++) { c[k] = s[q - k]; s[k] = c[q - k]; }
+        for (int k = q; k < n; k++) { c[k] = -s[k - q]; s[k] = c[k - q]; }   // times i
+        return (c, s);
+    }
+
+    /// <summary>rev(i) over log2 n bits, built from rev(i / 2).</summary>
+    private static int[] BitReversal(int n)
+    {
+        int bits = System.Numerics.BitOperations.Log2((uint)n);
+        var rev = new int[n];
+        for (int i = 1; i < n; i++) rev[i] = (rev[i >> 1] >> 1) | ((i & 1) << (bits - 1));
+        return rev;
     }
 
     /// <summary>True when this CPU runs the vector path (AVX2 + FMA).</summary>
@@ -69,7 +96,7 @@ internal sealed class Fft
     private unsafe void TransformScalar(Span<double> a)
     {
         int n = Size;
-        int[] rev = _rev;
+        int[] rev = _rev!;
         for (int i = 0; i < n; i++)
         {
             int r = rev[i];
@@ -101,7 +128,7 @@ internal sealed class Fft
         // Stages whose butterflies stay inside one cache-sized block run block by block (one pass over memory for
         // all of them); the remaining large stages stream the whole array once each.
         int block = Math.Min(n, CacheBlock);
-        fixed (double* pa = a, ptw = _tw)
+        fixed (double* pa = a, ptw = _tw!)
         {
             for (int b0 = 0; b0 < n; b0 += block)
                 for (int len = 8; len <= block; len <<= 1) Stage(pa + 2 * b0, block, len, ptw + len);
@@ -178,22 +205,25 @@ internal sealed class Fft
         private readonly int[] _passTw;      // offset of each pass's twiddles in _tw
         private readonly int _blockedPasses; // passes [0, _blockedPasses) span at most one block
 
-        public VectorPlan(int n, int[] rev)
+        public VectorPlan(int n, double[] cos, double[] sin)
         {
             _n = n;
-            var swaps = new List<int>(n);
-            for (int i = 0; i < n; i++)
-                if (rev[i] > i) { swaps.Add(i); swaps.Add(rev[i]); }
-            _swaps = swaps.ToArray();
             int bits = System.Numerics.BitOperations.Log2((uint)n);
+            var swaps = new List<int>();
             var tiles = new List<int>();
             if (bits >= 4)
+            {
+                int[] mrev = BitReversal(n >> 4);   // middle bits; n = 16 gives the single tile (0, 0)
                 for (int m = 0; m < n >> 4; m++)
-                {
-                    int r = 0, v = m;
-                    for (int b = 0; b < bits - 4; b++) { r = (r << 1) | (v & 1); v >>= 1; }
-                    if (r >= m) { tiles.Add(m); tiles.Add(r); }
-                }
+                    if (mrev[m] >= m) { tiles.Add(m); tiles.Add(mrev[m]); }
+            }
+            else
+            {
+                int[] rev = BitReversal(n);
+                for (int i = 0; i < n; i++)
+                    if (rev[i] > i) { swaps.Add(i); swaps.Add(rev[i]); }
+            }
+            _swaps = swaps.ToArray();
             _tiles = tiles.ToArray();
             var lens = new List<int>();
             int s = 3;
@@ -201,43 +231,41 @@ internal sealed class Fft
             for (; s < bits; s += 2) lens.Add(1 << s);
             _passLen = lens.ToArray();
             _passTw = new int[_passLen.Length];
-            var tw = new List<double>();
+            int size = 0;
+            for (int p = 0; p < _passLen.Length; p++) { _passTw[p] = size; size += _passLen[p] < 0 ? -2 * _passLen[p] : 6 * _passLen[p]; }
+            _tw = new double[size];
             int block = Math.Min(n, Block);
             for (int p = 0; p < _passLen.Length; p++)
             {
-                _passTw[p] = tw.Count;
-                int len = _passLen[p];
+                int len = _passLen[p], at = _passTw[p];
                 if (len < 0)
                 {
                     // radix-2 stage of length L = -len: w^j = exp(2 pi i j / L), j < L/2
-                    int l = -len;
-                    for (int j = 0; j < l / 2; j += 2) AddPair(tw, j, j + 1, l);
+                    int l = -len, step = n / l;
+                    for (int j = 0; j < l / 2; j += 2, at += 8) Put(_tw, at, cos, sin, j * step, (j + 1) * step);
                 }
                 else
                 {
                     // radix-4 pass of span M = 2 L: per pair of j < L/2, W^j, W^2j, W^3j with W = exp(2 pi i / M)
-                    int m = 2 * len;
-                    for (int j = 0; j < len / 2; j += 2)
+                    int step = n / (2 * len);
+                    for (int j = 0; j < len / 2; j += 2, at += 24)
                     {
-                        AddPair(tw, j, j + 1, m);
-                        AddPair(tw, 2 * j, 2 * j + 2, m);
-                        AddPair(tw, 3 * j, 3 * j + 3, m);
+                        Put(_tw, at, cos, sin, j * step, (j + 1) * step);
+                        Put(_tw, at + 8, cos, sin, 2 * j * step, (2 * j + 2) * step);
+                        Put(_tw, at + 16, cos, sin, 3 * j * step, (3 * j + 3) * step);
                     }
                 }
                 if (Span(p) <= block) _blockedPasses = p + 1;
             }
-            _tw = tw.ToArray();
         }
 
         private int Span(int p) => _passLen[p] < 0 ? -_passLen[p] : 2 * _passLen[p];
 
-        /// <summary>Appends (re j0, re j0, re j1, re j1, im j0, im j0, im j1, im j1) of exp(2 pi i j / m).</summary>
-        private static void AddPair(List<double> tw, int j0, int j1, int m)
+        /// <summary>Writes (re k0, re k0, re k1, re k1, im k0, im k0, im k1, im k1) of the roots k0, k1 at tw[at].</summary>
+        private static void Put(double[] tw, int at, double[] cos, double[] sin, int k0, int k1)
         {
-            (double s0, double c0) = Math.SinCos(2.0 * Math.PI * j0 / m);
-            (double s1, double c1) = Math.SinCos(2.0 * Math.PI * j1 / m);
-            tw.Add(c0); tw.Add(c0); tw.Add(c1); tw.Add(c1);
-            tw.Add(s0); tw.Add(s0); tw.Add(s1); tw.Add(s1);
+            tw[at] = tw[at + 1] = cos[k0]; tw[at + 2] = tw[at + 3] = cos[k1];
+            tw[at + 4] = tw[at + 5] = sin[k0]; tw[at + 6] = tw[at + 7] = sin[k1];
         }
 
         [MethodImpl(MethodImplOptions.AggressiveOptimization)]
