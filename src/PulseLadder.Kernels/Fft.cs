@@ -318,7 +318,7 @@ internal sealed class Fft
         private static unsafe void ReverseAndFirst(double* a, int n, int* tiles, int count)
         {
             int st = n >> 1;   // doubles between rows h and h + 1 (n / 4 complex)
-            Vector256<double> sign = Vector256.Create(0.0, 0.0, -0.0, 0.0);
+            Vector256<double> one = Vector256.Create(1.0);
             for (int k = 0; k < count; k += 2)
             {
                 int m = tiles[k], mr = tiles[k + 1];
@@ -329,7 +329,7 @@ internal sealed class Fft
                 Vector256<double> x30 = Avx.LoadVector256(x + 3 * st), x31 = Avx.LoadVector256(x + 3 * st + 4);
                 if (mr == m)
                 {
-                    WriteTile(x, st, x00, x01, x10, x11, x20, x21, x30, x31, sign);
+                    WriteTile(x, st, x00, x01, x10, x11, x20, x21, x30, x31, one);
                 }
                 else
                 {
@@ -338,35 +338,38 @@ internal sealed class Fft
                     Vector256<double> y10 = Avx.LoadVector256(y + st), y11 = Avx.LoadVector256(y + st + 4);
                     Vector256<double> y20 = Avx.LoadVector256(y + 2 * st), y21 = Avx.LoadVector256(y + 2 * st + 4);
                     Vector256<double> y30 = Avx.LoadVector256(y + 3 * st), y31 = Avx.LoadVector256(y + 3 * st + 4);
-                    WriteTile(y, st, x00, x01, x10, x11, x20, x21, x30, x31, sign);
-                    WriteTile(x, st, y00, y01, y10, y11, y20, y21, y30, y31, sign);
+                    WriteTile(y, st, x00, x01, x10, x11, x20, x21, x30, x31, one);
+                    WriteTile(x, st, y00, y01, y10, y11, y20, y21, y30, y31, one);
                 }
             }
         }
 
         /// <summary>
-        /// Row p of the new tile is column c = rev p of the old one in row order 0, 2, 1, 3; the radix-4 group wants it
-        /// as (x0, x2) = old rows 0, 1 and (x1, x3) = old rows 2, 3 of that column.
+        /// Row p of the new tile is column c = rev p of the old one in row order 0, 2, 1, 3, i.e. (x0, x1, x2, x3) =
+        /// old rows (0, 2, 1, 3). Stages 1 and 2 therefore combine whole old rows (two columns per vector, no shuffle);
+        /// only the final transpose crosses 128-bit lanes.
         /// </summary>
         [MethodImpl(MethodImplOptions.AggressiveInlining)]
         private static unsafe void WriteTile(double* d, int st, Vector256<double> x00, Vector256<double> x01, Vector256<double> x10,
-            Vector256<double> x11, Vector256<double> x20, Vector256<double> x21, Vector256<double> x30, Vector256<double> x31, Vector256<double> sign)
+            Vector256<double> x11, Vector256<double> x20, Vector256<double> x21, Vector256<double> x30, Vector256<double> x31, Vector256<double> one)
         {
-            Group(d, Avx.Permute2x128(x00, x10, 0x20), Avx.Permute2x128(x20, x30, 0x20), sign);
-            Group(d + st, Avx.Permute2x128(x01, x11, 0x20), Avx.Permute2x128(x21, x31, 0x20), sign);
-            Group(d + 2 * st, Avx.Permute2x128(x00, x10, 0x31), Avx.Permute2x128(x20, x30, 0x31), sign);
-            Group(d + 3 * st, Avx.Permute2x128(x01, x11, 0x31), Avx.Permute2x128(x21, x31, 0x31), sign);
+            Half(d, d + 2 * st, x00, x10, x20, x30, one);        // columns 0, 1 -> new rows 0, 2
+            Half(d + st, d + 3 * st, x01, x11, x21, x31, one);   // columns 2, 3 -> new rows 1, 3
         }
 
-        /// <summary>Stages 1 and 2 on one group (x0, x1, x2, x3) given as lo = (x0, x2), hi = (x1, x3); stores it at p.</summary>
+        /// <summary>Stages 1-2 on two columns (old rows v0..v3), then the two new rows stored at r0 and r1.</summary>
         [MethodImpl(MethodImplOptions.AggressiveInlining)]
-        private static unsafe void Group(double* p, Vector256<double> lo, Vector256<double> hi, Vector256<double> sign)
+        private static unsafe void Half(double* r0, double* r1, Vector256<double> v0, Vector256<double> v1, Vector256<double> v2,
+            Vector256<double> v3, Vector256<double> one)
         {
-            Vector256<double> s = Avx.Add(lo, hi), d = Avx.Subtract(lo, hi);       // (x0+x1, x2+x3), (x0-x1, x2-x3)
-            Vector256<double> pp = Avx.Permute2x128(s, d, 0x20), q = Avx.Permute2x128(s, d, 0x31);
-            q = Avx.Xor(Avx.Permute(q, 0b0110), sign);                              // (x2+x3, i (x2-x3))
-            Avx.Store(p, Avx.Add(pp, q));
-            Avx.Store(p + 4, Avx.Subtract(pp, q));
+            Vector256<double> s02 = Avx.Add(v0, v2), d02 = Avx.Subtract(v0, v2);     // x0 + x1, x0 - x1
+            Vector256<double> s13 = Avx.Add(v1, v3), d13 = Avx.Permute(Avx.Subtract(v1, v3), 0b0101);  // x2 + x3, (x2 - x3) as (im, re)
+            Vector256<double> t0 = Avx.Add(s02, s13), t2 = Avx.Subtract(s02, s13);
+            Vector256<double> t1 = Avx.AddSubtract(d02, d13), t3 = Fma.MultiplySubtractAdd(d02, one, d13);  // d02 +- i (x2 - x3)
+            Avx.Store(r0, Avx.Permute2x128(t0, t1, 0x20));
+            Avx.Store(r0 + 4, Avx.Permute2x128(t2, t3, 0x20));
+            Avx.Store(r1, Avx.Permute2x128(t0, t1, 0x31));
+            Avx.Store(r1 + 4, Avx.Permute2x128(t2, t3, 0x31));
         }
 
         /// <summary>Stages 1 and 2 (lengths 2 and 4, twiddles 1 and i) on each group of four complex numbers.</summary>
