@@ -31,22 +31,30 @@ public sealed class GlsNufftPlan
     private readonly double[] _deconv;          // sqrt(pi/tau) exp(k'^2 tau) / Mr, k' = -Mm/2 .. Mm/2-1
     private double[] _qr = [], _qi = [], _x = [];
 
+    /// <summary>Largest spreading half-width accepted (wide kernels go with small oversampling ratios).</summary>
+    public const int MaxSpread = 24;
+
+    /// <summary>Default smallest ratio of FFT length to grid length (the Gaussian's classic choice, R &gt;= 2).</summary>
+    public const double DefaultOversampling = 2;
+
     /// <summary>Creates a plan for the grid f0 + k df, k in [0, count).</summary>
     /// <param name="f0">First frequency, cycles/day.</param>
     /// <param name="df">Step, cycles/day (&gt; 0).</param>
     /// <param name="count">Number of frequencies (&gt;= 1).</param>
-    /// <param name="spread">Gaussian half-width Msp (4..16); 12 for ~1e-12 sums.</param>
-    public GlsNufftPlan(double f0, double df, int count, int spread = DefaultSpread)
+    /// <param name="spread">Gaussian half-width Msp (4..<see cref="MaxSpread"/>); 12 for ~1e-12 sums at R &gt;= 2.</param>
+    /// <param name="oversampling">Smallest ratio R of the FFT length (a power of two) to the grid length, 1.2..4.
+    /// The sums' error falls like exp(-pi Msp (1 - 1/(2R - 1))) (Dutt &amp; Rokhlin 1993): a small R with a wider
+    /// kernel halves the FFT, which is most of the cost, at a chosen accuracy (see <see cref="ForAccuracy"/>).</param>
+    public GlsNufftPlan(double f0, double df, int count, int spread = DefaultSpread, double oversampling = DefaultOversampling)
     {
         ArgumentOutOfRangeException.ThrowIfLessThan(count, 1);
         ArgumentOutOfRangeException.ThrowIfLessThan(spread, 4);
-        ArgumentOutOfRangeException.ThrowIfGreaterThan(spread, 16);
+        ArgumentOutOfRangeException.ThrowIfGreaterThan(spread, MaxSpread);
+        if (!(oversampling >= 1.2 && oversampling <= 4)) throw new ArgumentOutOfRangeException(nameof(oversampling), oversampling, "must be in [1.2, 4].");
         if (!double.IsFinite(f0) || !(df > 0) || !double.IsFinite(df)) throw new ArgumentException("f0 must be finite and df finite and > 0.");
         F0 = f0; Df = df; Count = count; _msp = spread;
         _mm = count + (count & 1);
-        int mr = 1;
-        while (mr < 2 * _mm || mr < 4 * spread) mr <<= 1;
-        _mr = mr;
+        _mr = FftLength(_mm, spread, oversampling);
         double r = (double)_mr / _mm;
         _tau = Math.PI * _msp / ((double)_mm * _mm * r * (r - 0.5));
         _fft = new Fft(_mr);
@@ -65,24 +73,80 @@ public sealed class GlsNufftPlan
         }
     }
 
+    /// <summary>FFT length for a grid of <paramref name="mm"/> (even) frequencies: the smallest power of two >= R mm and >= 4 Msp.</summary>
+    internal static int FftLength(long mm, int spread, double oversampling)
+    {
+        long mr = 1;
+        while (mr < oversampling * mm || mr < 4 * spread) mr <<= 1;
+        if (mr > 1 << 30) throw new ArgumentOutOfRangeException(nameof(mm), mm, "grid too long for one transform.");
+        return (int)mr;
+    }
+
+    /// <summary>Smallest oversampling ratio <see cref="ForAccuracy"/> uses.</summary>
+    internal const double MinSearchOversampling = 1.25;
+
+    /// <summary>
+    /// Plan with the smallest FFT that keeps the transformed sums within about <paramref name="relativeError"/> of
+    /// sum |h| (the power then within a small multiple of it), for grids of up to <see cref="Capacity"/> frequencies:
+    /// the FFT length is the smallest power of two >= 1.25 count, the plan's own grid length is that over 1.25 (so one
+    /// plan serves every count that maps to the same FFT, and its tables are built once), and Msp the narrowest with
+    /// exp(-pi Msp (1 - 1/(2R - 1))) below the target. At 1e-9 the FFT is about half the default's (1e-12, R >= 2).
+    /// </summary>
+    public static GlsNufftPlan ForAccuracy(double f0, double df, int count, double relativeError)
+    {
+        var (capacity, spread, ratio) = ChooseKernel(count, relativeError);
+        var plan = new GlsNufftPlan(f0, df, capacity, spread, ratio);
+        plan.Retarget(f0, df, count);
+        return plan;
+    }
+
+    /// <summary>Grid capacity, Msp and R chosen by <see cref="ForAccuracy"/>.</summary>
+    internal static (int Capacity, int Spread, double Oversampling) ChooseKernel(int count, double relativeError)
+    {
+        ArgumentOutOfRangeException.ThrowIfLessThan(count, 1);
+        if (!(relativeError >= 1e-13 && relativeError < 1)) throw new ArgumentOutOfRangeException(nameof(relativeError), relativeError, "must be in [1e-13, 1).");
+        double ratio = MinSearchOversampling;
+        while (true)
+        {
+            double decay = Math.PI * (1 - 1 / (2 * ratio - 1));
+            int spread = Math.Max(4, (int)Math.Ceiling(Math.Log(1 / relativeError) / decay));
+            if (spread <= MaxSpread || ratio >= 4)
+            {
+                long mm = count + (count & 1);
+                int mr = FftLength(mm, spread, ratio);
+                int capacity = (int)Math.Floor(mr / ratio) & ~1;
+                return (Math.Max(capacity, (int)mm), Math.Min(spread, MaxSpread), ratio);
+            }
+            ratio *= 2;
+        }
+    }
+
+    /// <summary>Grid length the plan's tables are built for; <see cref="Count"/> may be any length up to it.</summary>
+    public int Capacity => _mm;
+
     /// <summary>First frequency, cycles/day.</summary>
     public double F0 { get; private set; }
 
     /// <summary>Frequency step, cycles/day.</summary>
     public double Df { get; private set; }
 
-    /// <summary>Re-points a pooled plan at another grid with the same <see cref="Count"/> (tables depend on Count only).</summary>
-    internal void Retarget(double f0, double df)
+    /// <summary>Re-points a pooled plan at another grid with the same <see cref="Count"/> (tables depend on the capacity only).</summary>
+    internal void Retarget(double f0, double df) => Retarget(f0, df, Count);
+
+    /// <summary>Re-points a pooled plan at the grid f0 + k df, k in [0, count), count up to <see cref="Capacity"/>.</summary>
+    internal void Retarget(double f0, double df, int count)
     {
         if (!double.IsFinite(f0) || !(df > 0) || !double.IsFinite(df)) throw new ArgumentException("f0 must be finite and df finite and > 0.");
-        F0 = f0; Df = df;
+        ArgumentOutOfRangeException.ThrowIfLessThan(count, 1);
+        ArgumentOutOfRangeException.ThrowIfGreaterThan(count, _mm);
+        F0 = f0; Df = df; Count = count;
     }
 
     /// <summary>Estimated seconds for one call on this machine class (FFT and spreading terms; see <see cref="Periodogram.GlsAuto"/>).</summary>
     internal static double EstimatedSeconds(long n, long count)
     {
-        long mm = count + (count & 1), mr = 1;
-        while (mr < 2 * mm || mr < 4 * DefaultSpread) mr <<= 1;
+        long mm = count + (count & 1);
+        long mr = FftLength(mm, DefaultSpread, DefaultOversampling);
         double log2 = Math.Log2(mr);
         // Calibrated on the 2-core AVX-512 machine of docs/PERFORMANCE.md: per element and FFT stage ~1.5 ns while a
         // grid fits in cache (<= 2^18 complex, 4 MB) and ~3.5 ns beyond (three transforms); ~1.5 ns per spread update
@@ -92,7 +156,7 @@ public sealed class GlsNufftPlan
     }
 
     /// <summary>Number of frequencies.</summary>
-    public int Count { get; }
+    public int Count { get; private set; }
 
     /// <summary>FFT length per transform (three transforms per call).</summary>
     public int GridSize => _mr;
@@ -165,11 +229,42 @@ public sealed class GlsNufftPlan
         }
     }
 
+    /// <summary>
+    /// Spectral window of the times on this plan's grid: W(f_k) = |(1/N) sum_i exp(2 pi i f_k t_i)|^2 (Deeming 1975;
+    /// unweighted), one transform instead of three. Accurate to about the plan's sum error (relative to 1 = W(0)).
+    /// </summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
+    public void Window(ReadOnlySpan<double> t, Span<double> window)
+    {
+        if (window.Length != Count) throw new ArgumentException($"window has {window.Length} elements, the plan's grid {Count}.");
+        int n = t.Length;
+        if (n == 0) { window.Clear(); return; }
+        if (_x.Length < n) { _x = new double[n]; _qr = new double[n]; _qi = new double[n]; }
+        double twoPi = 2.0 * Math.PI, fc = F0 + (_mm / 2) * Df, inv = 1.0 / n;
+        for (int i = 0; i < n; i++)
+        {
+            double x = twoPi * Df * t[i];
+            x -= twoPi * Math.Floor(x / twoPi);
+            _x[i] = x;
+            (double s, double c) = Math.SinCos(twoPi * fc * t[i]);
+            _qr[i] = inv * c; _qi[i] = inv * s;
+        }
+        SpreadAndTransform(n);
+        int mr = _mr, half = _mm / 2;
+        for (int k = 0; k < Count; k++)
+        {
+            int kk = k - half;
+            int g = kk < 0 ? kk + mr : kk;
+            double re = _grid[2 * g] * _deconv[k], im = _grid[2 * g + 1] * _deconv[k];
+            window[k] = re * re + im * im;
+        }
+    }
+
     [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     private void Extract(double[] dst)
     {
         int mr = _mr, half = _mm / 2;
-        for (int k = 0; k < _mm; k++)
+        for (int k = 0; k < Count; k++)
         {
             int kk = k - half;
             int g = kk < 0 ? kk + mr : kk;
@@ -186,7 +281,7 @@ public sealed class GlsNufftPlan
         int mr = _mr, msp = _msp, mask = mr - 1;
         double h = 2.0 * Math.PI / mr, inv4Tau = 1.0 / (4.0 * _tau);
         double[] grid = _grid, e3 = _e3;
-        Span<double> wts = stackalloc double[2 * DefaultSpread + 8];
+        Span<double> wts = stackalloc double[2 * MaxSpread];
         wts = wts[..(2 * msp)];
         for (int i = 0; i < n; i++)
         {

@@ -89,6 +89,89 @@ public static class Periodogram
         }
     }
 
+    /// <summary>Error of the transformed sums in <see cref="GlsForSearch"/>, relative to sum |h|: the power is then within
+    /// a few 1e-10 of the exact kernel (measured: GlsSearchPathTests, docs/PERFORMANCE.md), far below what a period search ranks on or a plot shows.</summary>
+    public const double SearchSumError = 1e-9;
+
+    /// <summary>
+    /// Cost of one FFT butterfly element per stage relative to one exact-kernel evaluation (point x frequency), used by
+    /// <see cref="PreferNufftForSearch"/>. Measured on the 2-core AMD Zen 3 (AVX2) machine of docs/PERFORMANCE.md
+    /// (session 4); a fixed constant rather than a timing at start-up so the method chosen, which is recorded with every
+    /// result, depends on the input only.
+    /// </summary>
+    internal const double FftElementCost = 1.4;
+
+    [ThreadStatic] private static GlsNufftPlan?[]? _threadSearchPlans;
+
+    /// <summary>
+    /// The period search's grid periodogram: the NUFFT at <see cref="SearchSumError"/> when the operation count
+    /// says it is clearly cheaper than the exact kernel (a few hundred points or more on thousands of
+    /// frequencies), otherwise the exact kernel. Deterministic: the choice depends on (N, M) only. Each thread keeps
+    /// one plan per FFT length, so a worker's successive stars reuse tables (FFT twiddles, deconvolution factors).
+    /// </summary>
+    /// <returns>The method used, recorded with results: <see cref="GlsVariantName"/> or e.g. "gls-nufft-gauss20".</returns>
+    public static string GlsForSearch(ReadOnlySpan<double> t, ReadOnlySpan<double> y, ReadOnlySpan<double> w, double f0, double df, Span<double> power)
+    {
+        if (t.Length != y.Length || t.Length != w.Length) KernelThrow.LengthMismatch();
+        if (!PreferNufftForSearch(t.Length, power.Length) || !(df > 0) || !double.IsFinite(df) || !double.IsFinite(f0))
+        {
+            Gls(t, y, w, f0, df, power);
+            return GlsVariantName;
+        }
+        var (capacity, spread, ratio) = GlsNufftPlan.ChooseKernel(power.Length, SearchSumError);
+        int slot = System.Numerics.BitOperations.Log2((uint)GlsNufftPlan.FftLength(capacity, spread, ratio));
+        var plans = _threadSearchPlans ??= new GlsNufftPlan?[31];
+        GlsNufftPlan? plan = plans[slot];
+        plans[slot] = null; // off the thread while in use, as for the exact plan
+        if (plan is null) plan = GlsNufftPlan.ForAccuracy(f0, df, power.Length, SearchSumError);
+        else plan.Retarget(f0, df, power.Length);
+        try
+        {
+            plan.Execute(t, y, w, power);
+            return plan.MethodName;
+        }
+        finally { plans[slot] = plan; }
+    }
+
+    /// <summary>
+    /// Spectral window |(1/N) sum exp(2 pi i f t)|^2 on the whole grid f0 + k df by the NUFFT at <see cref="SearchSumError"/>
+    /// (one transform), from the same per-thread plans as <see cref="GlsForSearch"/>. For plotting next to a search
+    /// periodogram; callers that need a few frequencies only are better served by direct sums.
+    /// </summary>
+    public static void WindowForSearch(ReadOnlySpan<double> t, double f0, double df, Span<double> window)
+    {
+        if (window.Length == 0) return;
+        var (capacity, spread, ratio) = GlsNufftPlan.ChooseKernel(window.Length, SearchSumError);
+        int slot = System.Numerics.BitOperations.Log2((uint)GlsNufftPlan.FftLength(capacity, spread, ratio));
+        var plans = _threadSearchPlans ??= new GlsNufftPlan?[31];
+        GlsNufftPlan? plan = plans[slot];
+        plans[slot] = null;
+        if (plan is null) plan = GlsNufftPlan.ForAccuracy(f0, df, window.Length, SearchSumError);
+        else plan.Retarget(f0, df, window.Length);
+        try { plan.Window(t, window); }
+        finally { plans[slot] = plan; }
+    }
+
+    /// <summary>Cost of <see cref="WindowForSearch"/> on a grid of <paramref name="count"/> frequencies in the units of
+    /// <see cref="PreferNufftForSearch"/> (one transform, spreading, output) for <paramref name="n"/> points.</summary>
+    public static double WindowForSearchCost(int n, int count)
+    {
+        var (capacity, spread, ratio) = GlsNufftPlan.ChooseKernel(Math.Max(1, count), SearchSumError);
+        double mr = GlsNufftPlan.FftLength(capacity, spread, ratio);
+        return mr * Math.Log2(mr) * FftElementCost + 2.0 * n * spread + 4.0 * capacity;
+    }
+
+    /// <summary>The cost model of <see cref="GlsForSearch"/> in exact-kernel evaluations: the NUFFT's three transforms,
+    /// spreading and output against N M; the NUFFT is taken when it costs less than 0.7 of the exact kernel.</summary>
+    internal static bool PreferNufftForSearch(int n, int count)
+    {
+        if (count < 1024 || n < 16) return false;
+        var (capacity, spread, ratio) = GlsNufftPlan.ChooseKernel(count, SearchSumError);
+        double mr = GlsNufftPlan.FftLength(capacity, spread, ratio);
+        double nufft = 3 * mr * Math.Log2(mr) * FftElementCost + 3.0 * n * 2 * spread + 12.0 * capacity;
+        return nufft < 0.7 * n * (double)count;
+    }
+
     /// <summary>The cost model of <see cref="GlsAuto"/>: true when the NUFFT path is estimated clearly cheaper.</summary>
     internal static bool ChooseFast(int n, int count, double df)
     {

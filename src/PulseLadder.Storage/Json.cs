@@ -20,6 +20,7 @@ public static class Json
             WriteIndented = false,
         };
         o.Converters.Add(new JsonStringEnumConverter(JsonNamingPolicy.SnakeCaseLower));
+        o.Converters.Add(new CurveJsonConverter());
         return o;
     }
 
