@@ -1,4 +1,5 @@
 using System.Text.Json;
+using Xunit.Abstractions;
 
 namespace PulseLadder.Kernels.Tests;
 
@@ -6,7 +7,7 @@ namespace PulseLadder.Kernels.Tests;
 /// The internal FFT (both paths: AVX2 + FMA vector path and portable scalar path) against the DFT definition,
 /// sum_m a_m exp(+2 pi i k m / n), and against numpy.fft.
 /// </summary>
-public class FftTests
+public class FftTests(ITestOutputHelper output)
 {
     private static double[] RandomInput(int n)
     {
@@ -99,6 +100,7 @@ public class FftTests
         double worst = 0, ss = 0;
         for (int i = 0; i < a.Length; i++) { worst = Math.Max(worst, Math.Abs(a[i] - b[i])); ss += b[i] * b[i]; }
         double rms = Math.Sqrt(ss / a.Length);
+        output.WriteLine($"n={n}: vector vs scalar max |diff| / rms = {worst / rms:E2}");
         Assert.True(worst <= 1e-13 * rms, $"worst |diff| / rms = {worst / rms:E2}");
     }
 
@@ -132,6 +134,7 @@ public class FftTests
             double worst = 0;
             for (int b = 0; b < bins.Length; b++)
                 worst = Math.Max(worst, Math.Max(Math.Abs(a[2 * bins[b]] - re[b]), Math.Abs(a[2 * bins[b] + 1] - im[b])));
+            output.WriteLine($"numpy n={n} vector={vector}: max |diff| / rms = {worst / rms:E2}");
             Assert.True(worst <= 1e-12 * rms, $"n={n} vector={vector}: worst |diff| / rms = {worst / rms:E2}");
             cases++;
         }
