@@ -9,8 +9,8 @@ namespace PulseLadder.Kernels;
 /// Twiddles come from <see cref="Math.SinCos"/> (tables per size, no recurrence), so the error stays at the
 /// O(eps log n) level of the butterflies.
 /// Two paths, chosen at run time: on x86 with AVX2 and FMA a vector path (two complex numbers per
-/// <see cref="Vector256{T}"/>, radix-4 passes, one cheap swap list for the bit reversal); elsewhere the portable
-/// scalar radix-2 path, which is also the reference the vector path is tested against.
+/// <see cref="Vector256{T}"/>, radix-4 passes, a cache-friendly tiled bit reversal); elsewhere the portable scalar
+/// radix-2 path, which is also the reference the vector path is tested against.
 /// </summary>
 internal sealed class Fft
 {
@@ -190,8 +190,9 @@ internal sealed class Fft
 
     /// <summary>
     /// The AVX2 + FMA path. Decimation in time like the scalar path: bit reversal fused with stages 1-2 (radix 4, no
-    /// multiplications) in one cache-friendly pass, one radix-2 stage when the remaining count is odd, then radix-4 passes (two stages, three complex products per butterfly instead of four).
-    /// Passes whose butterflies stay inside one cache block run block by block. Twiddles are stored per pass in the
+    /// multiplications) in one cache-friendly pass, one radix-2 stage when the remaining count is odd, then radix-4
+    /// passes (two stages, three complex products per butterfly instead of four). Passes whose butterflies stay
+    /// inside one cache block run block by block. Twiddles are stored per pass in the
     /// order the loop reads them, with real and imaginary parts already duplicated for the vector product.
     /// </summary>
     private sealed class VectorPlan
