@@ -23,6 +23,12 @@ internal sealed record FourierSolution(
 /// </summary>
 internal static class FourierRefiner
 {
+    /// <summary>
+    /// Estimated distance to the minimum, in standard errors of every parameter, below which the iteration stops
+    /// (common practice: stop once further steps are far below the parameters' errors; here a ten-thousandth).
+    /// </summary>
+    internal const double StepTolerance = 1e-4;
+
     public static FourierSolution? Fit(IReadOnlyList<BandSeries> bands, int[] orders, double f0, int maxIter = 60, bool allowVector = true)
     {
         int nb = bands.Count;
@@ -50,6 +56,7 @@ internal static class FourierRefiner
         double lambda = 1e-3;
         int iter = 0;
         bool converged = false;
+        double prevLen = double.NaN;
         for (; iter < maxIter; iter++)
         {
             Evaluate(bands, orders, offsets, theta, jtj, jtr, allowVector);
@@ -71,6 +78,15 @@ internal static class FourierRefiner
                     lambda = Math.Max(lambda / 10, 1e-12);
                     improved = true;
                     if (rel < 1e-13) converged = true;
+                    // Step length in standard errors: step.(J^T W r) = step^T (J^T W J + damping) step bounds
+                    // step^T (J^T W J) step, which bounds (step_i / sigma_i)^2 for every parameter (Cauchy-Schwarz).
+                    // With large residuals (chi2_red >> 1) Gauss-Newton converges linearly, so the distance still to
+                    // go is estimated as the geometric tail len * rho / (1 - rho), rho the steps' shrink factor.
+                    double g = 0;
+                    for (int i = 0; i < np; i++) g += step[i] * jtr[i];
+                    double len = Math.Sqrt(Math.Max(g, 0)), rho = len / prevLen;
+                    if (len < 10 * StepTolerance && rho < 1 && len * rho / (1 - rho) < StepTolerance) converged = true;
+                    prevLen = len;
                 }
                 else lambda *= 10;
             }

@@ -9,7 +9,7 @@ namespace PulseLadder.Core.Tests.PeriodSearch;
 /// </summary>
 public sealed class FourierRefinerVectorTests
 {
-    private static BandSeries Band(int n, int observers, Random rng)
+    private static BandSeries Band(int n, int observers, Random rng, double drift = 0)
     {
         var t = new double[n]; var y = new double[n]; var w = new double[n]; var o = new int[n];
         double ws = 0, wy = 0;
@@ -18,7 +18,7 @@ public sealed class FourierRefinerVectorTests
         {
             t[i] = -300 + 600.0 * i / Math.Max(1, n - 1) + rng.NextDouble() * 0.3;
             o[i] = observers > 1 ? rng.Next(observers) : 0;
-            double ph = 2 * Math.PI * t[i] / 5.37 + phase;
+            double ph = 2 * Math.PI * t[i] / 5.37 + phase + drift * t[i] * t[i];
             y[i] = 15 + 0.4 * Math.Sin(ph) + 0.1 * Math.Sin(2 * ph + 1) + 0.03 * o[i] + 0.01 * (rng.NextDouble() - 0.5);
             double e = 0.005 + 0.02 * rng.NextDouble();
             w[i] = 1 / (e * e);
@@ -88,6 +88,35 @@ public sealed class FourierRefinerVectorTests
             double rs = Math.Sqrt(jtjS[i * np + i] * chiS);
             Assert.True(Math.Abs(jtrS[i] - jtrV[i]) <= 1e-12 * rs, $"jtr[{i}]: {jtrS[i]} vs {jtrV[i]}");
         }
+    }
+
+    [Fact]
+    public void Fit_StopsWhereTheNextGaussNewtonStepIsFarBelowTheErrors_WithLargeResiduals()
+    {
+        // A period that drifts (quadratic phase, a few radians at the ends) fitted with a fixed one: chi2_red >> 1,
+        // where Gauss-Newton converges only linearly and the stopping rule has to extrapolate the remaining steps.
+        var rng = new Random(5);
+        var bands = new[] { Band(300, 3, rng, 4e-5), Band(300, 2, rng, 4e-5) };
+        int[] orders = [2, 2];
+        var sol = FourierRefiner.Fit(bands, orders, 1 / 5.37 * (1 + 3e-6));
+        Assert.NotNull(sol);
+        Assert.True(sol!.Converged);
+        Assert.True(sol.Chi2Reduced > 10, $"chi2_red {sol.Chi2Reduced}");
+
+        var offsets = new int[bands.Length];
+        int np = FourierRefiner.Offsets(bands, orders, offsets);
+        var theta = new double[np];
+        theta[0] = sol.Frequency;
+        for (int b = 0; b < bands.Length; b++) sol.BandParams[b].CopyTo(theta, offsets[b]);
+        var jtj = new double[np * np]; var jtr = new double[np];
+        FourierRefiner.Evaluate(bands, orders, offsets, theta, jtj, jtr);
+        var step = (double[])jtr.Clone();
+        Assert.True(SmallMatrix.Cholesky(jtj, np));
+        SmallMatrix.Solve(jtj, np, step);
+        // Length of the next step in standard errors (sqrt(step^T J^T W J step)); it bounds every parameter's
+        // step over its error. The rule stops at a tail estimate of StepTolerance = 1e-4; allow ten times that.
+        double len = Math.Sqrt(step.Zip(jtr, (u, v) => u * v).Sum());
+        Assert.True(len < 1e-3, $"next step {len:E2} standard errors after {sol.Iterations} iterations");
     }
 
     [Fact]
