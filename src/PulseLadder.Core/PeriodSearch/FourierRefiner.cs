@@ -57,9 +57,28 @@ internal static class FourierRefiner
         int iter = 0;
         bool converged = false;
         double prevLen = double.NaN;
+        bool jtjAtTheta = false;
         for (; iter < maxIter; iter++)
         {
             Evaluate(bands, orders, offsets, theta, jtj, jtr, allowVector);
+            jtjAtTheta = true;
+            // Undamped Gauss-Newton step from here, its length in standard errors: sqrt(step^T (J^T W J) step)
+            // bounds |step_i| / sigma_i for every parameter (Cauchy-Schwarz). With large residuals (chi2_red >> 1)
+            // Gauss-Newton converges linearly, so the distance to the minimum is estimated as the geometric series
+            // len / (1 - rho), rho the shrink factor of successive lengths. Below StepTolerance the fit stops here
+            // and this J^T W J is the covariance's.
+            Array.Copy(jtj, a, jtj.Length);
+            Array.Copy(jtr, step, np);
+            if (SmallMatrix.Cholesky(a, np))
+            {
+                SmallMatrix.Solve(a, np, step);
+                double g = 0;
+                for (int i = 0; i < np; i++) g += step[i] * jtr[i];
+                double len = Math.Sqrt(Math.Max(g, 0)), rho = len / prevLen;
+                prevLen = len;
+                if (rho < 1 && len / (1 - rho) < StepTolerance) { converged = true; break; }
+            }
+            else prevLen = double.NaN;
             bool improved = false;
             for (int attempt = 0; attempt < 12 && !improved; attempt++)
             {
@@ -74,19 +93,11 @@ internal static class FourierRefiner
                 {
                     double rel = (chi2 - c2) / Math.Max(chi2, 1e-300);
                     Array.Copy(trial, theta, np);
+                    jtjAtTheta = false;
                     chi2 = c2;
                     lambda = Math.Max(lambda / 10, 1e-12);
                     improved = true;
                     if (rel < 1e-13) converged = true;
-                    // Step length in standard errors: step.(J^T W r) = step^T (J^T W J + damping) step bounds
-                    // step^T (J^T W J) step, which bounds (step_i / sigma_i)^2 for every parameter (Cauchy-Schwarz).
-                    // With large residuals (chi2_red >> 1) Gauss-Newton converges linearly, so the distance still to
-                    // go is estimated as the geometric tail len * rho / (1 - rho), rho the steps' shrink factor.
-                    double g = 0;
-                    for (int i = 0; i < np; i++) g += step[i] * jtr[i];
-                    double len = Math.Sqrt(Math.Max(g, 0)), rho = len / prevLen;
-                    if (len < 10 * StepTolerance && rho < 1 && len * rho / (1 - rho) < StepTolerance) converged = true;
-                    prevLen = len;
                 }
                 else lambda *= 10;
             }
@@ -95,7 +106,7 @@ internal static class FourierRefiner
         }
 
         // Covariance at the solution, undamped.
-        Evaluate(bands, orders, offsets, theta, jtj, jtr, allowVector);
+        if (!jtjAtTheta) Evaluate(bands, orders, offsets, theta, jtj, jtr, allowVector);
         if (!SmallMatrix.Cholesky(jtj, np)) return null;
         var cov = new double[np * np];
         SmallMatrix.Inverse(jtj, np, cov);

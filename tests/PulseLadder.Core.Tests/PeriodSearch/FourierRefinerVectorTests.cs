@@ -114,7 +114,7 @@ public sealed class FourierRefinerVectorTests
         Assert.True(SmallMatrix.Cholesky(jtj, np));
         SmallMatrix.Solve(jtj, np, step);
         // Length of the next step in standard errors (sqrt(step^T J^T W J step)); it bounds every parameter's
-        // step over its error. The rule stops at a tail estimate of StepTolerance = 1e-4; allow ten times that.
+        // step over its error. The rule stops at an estimated distance of StepTolerance = 1e-4; allow ten times that.
         double len = Math.Sqrt(step.Zip(jtr, (u, v) => u * v).Sum());
         Assert.True(len < 1e-3, $"next step {len:E2} standard errors after {sol.Iterations} iterations");
     }
