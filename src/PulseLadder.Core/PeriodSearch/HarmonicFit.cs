@@ -190,6 +190,66 @@ internal static class HarmonicFit
         return yy;
     }
 
+    /// <summary>
+    /// Unweighted sum of squared residuals of the band about the model with parameters <paramref name="x"/> (layout
+    /// as <see cref="Fit"/>) at frequency <paramref name="f"/>. Four points at a time where Vector256 is accelerated;
+    /// the scalar loop (<paramref name="allowVector"/> false, and the remainder) is the definition.
+    /// </summary>
+    internal static double ResidualSumOfSquares(BandSeries b, double f, int harmonics, ReadOnlySpan<double> x, bool allowVector = true)
+    {
+        int m = b.Observers.Length, p = ParamCount(harmonics, m), i = 0;
+        double ss = 0;
+        if (allowVector && Vector256.IsHardwareAccelerated && b.Count >= Vector256<double>.Count)
+            ss = ResidualSumOfSquaresVector(b, f, harmonics, x, out i);
+        Span<double> row = p <= 64 ? stackalloc double[p] : new double[p];
+        for (; i < b.Count; i++)
+        {
+            Row(f, b.T[i], b.Obs[i], harmonics, m, row);
+            double mdl = 0;
+            for (int j = 0; j < p; j++) mdl += row[j] * x[j];
+            double d = b.Y[i] - mdl;
+            ss += d * d;
+        }
+        return ss;
+    }
+
+    private static double ResidualSumOfSquaresVector(BandSeries b, double f, int harmonics, ReadOnlySpan<double> x, out int end)
+    {
+        int m = b.Observers.Length, q = 1 + 2 * harmonics;
+        // The observer columns are indicators: their model term is the point's observer offset (0 for the reference).
+        Span<double> offTab = m <= 64 ? stackalloc double[m] : new double[m];
+        offTab[0] = 0;
+        for (int j = 1; j < m; j++) offTab[j] = x[q + j - 1];
+        ref double t0 = ref MemoryMarshal.GetArrayDataReference(b.T);
+        ref double y0 = ref MemoryMarshal.GetArrayDataReference(b.Y);
+        var o = b.Obs;
+        var omega = Vector256.Create(2.0 * Math.PI * f);
+        var one = Vector256.Create(1.0);
+        var two = Vector256.Create(2.0);
+        var ss = Vector256<double>.Zero;
+        int n = b.Count, i = 0;
+        for (; i <= n - 4; i += 4)
+        {
+            var mdl = Vector256.Create(x[0]);
+            if (harmonics > 0)
+            {
+                var (s1, c1) = Vector256.SinCos(omega * Vector256.LoadUnsafe(ref t0, (nuint)i));
+                Vector256<double> cPrev = one, sPrev = Vector256<double>.Zero, c = c1, s = s1;
+                for (int k = 1; k <= harmonics; k++)
+                {
+                    mdl += Vector256.Create(x[2 * k - 1]) * c + Vector256.Create(x[2 * k]) * s;
+                    var cn = two * c1 * c - cPrev; var sn = two * c1 * s - sPrev;
+                    cPrev = c; sPrev = s; c = cn; s = sn;
+                }
+            }
+            if (m > 1) mdl += Vector256.Create(offTab[o[i]], offTab[o[i + 1]], offTab[o[i + 2]], offTab[o[i + 3]]);
+            var d = Vector256.LoadUnsafe(ref y0, (nuint)i) - mdl;
+            ss += d * d;
+        }
+        end = i;
+        return Vector256.Sum(ss);
+    }
+
     /// <summary>Sum over bands of the chi2 at <paramref name="f"/> with the given per-band orders (order 0 = band left out: its reference chi2 is used).</summary>
     public static double TotalChi2(IReadOnlyList<BandSeries> bands, IReadOnlyList<int> orders, IReadOnlyList<double> refChi2, double f)
     {

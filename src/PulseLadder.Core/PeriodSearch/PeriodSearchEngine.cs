@@ -626,7 +626,6 @@ internal static class PeriodSearchEngine
     {
         double? best = null;
         double bestInfo = 0;
-        Span<double> rowBuf = stackalloc double[64];
         for (int b = 0; b < data.Bands.Count; b++)
         {
             if (orders[b] <= 0) continue;
@@ -634,17 +633,8 @@ internal static class PeriodSearchEngine
             var x = sol.BandParams[b];
             double amp = Math.Sqrt(x[1] * x[1] + x[2] * x[2]);
             // rms residual of the fitted model (unweighted, per degree of freedom of the linear fit).
-            int k = orders[b], m = band.Observers.Length, p = x.Length;
-            Span<double> row = p <= 64 ? rowBuf[..p] : new double[p];
-            double ss = 0;
-            for (int i = 0; i < band.Count; i++)
-            {
-                HarmonicFit.Row(sol.Frequency, band.T[i], band.Obs[i], k, m, row);
-                double mdl = 0;
-                for (int j = 0; j < p; j++) mdl += row[j] * x[j];
-                double d = band.Y[i] - mdl;
-                ss += d * d;
-            }
+            int k = orders[b], p = x.Length;
+            double ss = HarmonicFit.ResidualSumOfSquares(band, sol.Frequency, k, x);
             if (band.Count <= p) continue;
             double sigma = Math.Sqrt(ss / (band.Count - p));
             double tb = band.T.Max() - band.T.Min();

@@ -62,6 +62,28 @@ public sealed class HarmonicFitVectorTests
         Assert.Equal(yyS, yyV, 1e-12 * Math.Max(1, yyS));
     }
 
+    [Theory]
+    [InlineData(4, 1, 1)]
+    [InlineData(13, 3, 2)]
+    [InlineData(9, 1, 0)]
+    [InlineData(301, 3, 3)]
+    [InlineData(1000, 4, 6)]
+    public void ResidualSumOfSquares_VectorMatchesTheScalarDefinition(int n, int observers, int harmonics)
+    {
+        Assert.True(Vector256.IsHardwareAccelerated, "this machine runs the vector path; the test needs it");
+        var b = Band(n, observers, n + 1);
+        int p = HarmonicFit.ParamCount(harmonics, observers);
+        // A fitted model, then perturbed so the residuals are not only noise.
+        var x = new double[p];
+        double f = 1 / 5.37;
+        Assert.NotNull(HarmonicFit.Fit(b, f, harmonics, x));
+        for (int j = 1; j < p; j++) x[j] *= 1.05;
+        double s = HarmonicFit.ResidualSumOfSquares(b, f, harmonics, x, allowVector: false);
+        double v = HarmonicFit.ResidualSumOfSquares(b, f, harmonics, x, allowVector: true);
+        Assert.True(s > 0);
+        Assert.Equal(s, v, 1e-12 * s);
+    }
+
     [Fact]
     public void Fit_GivesTheSameChi2AsTheScalarNormalEquations_WithObserverOffsets()
     {
