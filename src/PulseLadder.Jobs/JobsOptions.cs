@@ -16,13 +16,13 @@ public sealed class JobsOptions
 
     /// <summary>
     /// Stars per analysis job when many are queued at once (1: one job per star). A job costs the queue a fixed
-    /// ~0.3 ms in memory and ~11-14 ms on PostgreSQL (enqueue, fetch, three state changes: docs/PERFORMANCE.md),
-    /// against ~15 ms of analysis per star; batching keeps that overhead to a few percent. 0 means the default:
-    /// 8 in memory, 32 on PostgreSQL (~2-3% there; 8 would be ~10%).
+    /// ~0.3 ms in memory and ~15-27 ms on PostgreSQL (enqueue, fetch, three state changes: docs/PERFORMANCE.md),
+    /// against ~14 ms of analysis per star; batching keeps that overhead to a few percent. 0 means the default:
+    /// 8 in memory, 64 on PostgreSQL (~3% there; 32 measured 5.9% once the analysis got faster in session 4).
     /// </summary>
     public int BatchSize { get; set; }
 
-    public int EffectiveBatchSize => BatchSize > 0 ? BatchSize : Storage == "postgres" ? 32 : 8;
+    public int EffectiveBatchSize => BatchSize > 0 ? BatchSize : Storage == "postgres" ? 64 : 8;
 
     public int EffectiveWorkers => Workers > 0 ? Workers : Environment.ProcessorCount;
 
