@@ -46,8 +46,9 @@ public sealed class AnalyzeStarJob(Database db, IAnalysisQueue queue, TimeProvid
         var overrides = OverridesFor(star);
         var info = StarStore.ToStarInfo(star);
         // Light curve only: the field's PL context is added by the field pass (FieldSummaryJob) once the field is analysed.
-        var result = AnalysisPipeline.Run(info, observations, settings, overrides, registry: registry);
-        var row = ToRow(starId, revision, result, InputHash(info, observations, settings, overrides, null, registry), clock.GetUtcNow().ToString("O"));
+        string digest = ObservationsDigest(observations);
+        var result = AnalysisPipeline.Run(info, observations, settings, overrides, registry: registry) with { ObservationsDigest = digest };
+        var row = ToRow(starId, revision, result, InputHashFromDigest(info, digest, settings, overrides, null, registry), clock.GetUtcNow().ToString("O"));
 
         bool fieldDone;
         using (var c = db.Open())
@@ -136,6 +137,14 @@ public sealed class AnalyzeStarJob(Database db, IAnalysisQueue queue, TimeProvid
     /// </summary>
     public static string InputHash(StarInfo star, IReadOnlyList<Observation> obs, PipelineSettings settings, ReviewOverrides overrides,
         FieldContext? field, CalibrationRegistry? registry)
+        => InputHashFromDigest(star, ObservationsDigest(obs), settings, overrides, field, registry);
+
+    /// <summary>
+    /// The input hash from the observations' digest (<see cref="ObservationsDigest"/>): SHA-256 over the field context,
+    /// the registry hash, the star, settings and overrides (JSON), the pipeline version and "observations:" + digest.
+    /// </summary>
+    public static string InputHashFromDigest(StarInfo star, string observationsDigest, PipelineSettings settings, ReviewOverrides overrides,
+        FieldContext? field, CalibrationRegistry? registry)
     {
         using var h = IncrementalHash.CreateHash(HashAlgorithmName.SHA256);
         if (field is not null) h.AppendData(Encoding.UTF8.GetBytes("field:" + Json.Serialize(field.Compact())));
@@ -144,9 +153,18 @@ public sealed class AnalyzeStarJob(Database db, IAnalysisQueue queue, TimeProvid
         h.AppendData(Encoding.UTF8.GetBytes(Json.Serialize(settings)));
         h.AppendData(Encoding.UTF8.GetBytes(Json.Serialize(overrides)));
         h.AppendData(Encoding.UTF8.GetBytes(PipelineVersion.Current));
-        // Per observation: id, time, mag, mag_err (8 bytes each, machine order), then UTF-8 of
-        // "band|observer|flag|scale". Gathered in a buffer and hashed in large pieces (same bytes as hashing each
-        // piece on its own: a hash does not see how its input was split).
+        h.AppendData(Encoding.UTF8.GetBytes("observations:" + observationsDigest));
+        return Convert.ToHexString(h.GetHashAndReset()).ToLowerInvariant();
+    }
+
+    /// <summary>
+    /// SHA-256 (lower-case hex) of the observations: per observation id, time, mag, mag_err (8 bytes each, machine
+    /// order), then UTF-8 of "band|observer|flag|scale". Gathered in a buffer and hashed in large pieces (same bytes as
+    /// hashing each piece on its own: a hash does not see how its input was split).
+    /// </summary>
+    public static string ObservationsDigest(IReadOnlyList<Observation> obs)
+    {
+        using var h = IncrementalHash.CreateHash(HashAlgorithmName.SHA256);
         byte[] buf = System.Buffers.ArrayPool<byte>.Shared.Rent(1 << 16);
         try
         {

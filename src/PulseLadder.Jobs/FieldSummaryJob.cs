@@ -81,8 +81,10 @@ public sealed class FieldSummaryJob(Database db, TimeProvider clock, Calibration
             string json = Json.Serialize(updated);
             if (updated.Search is not null) json = Json.WithPropertyFrom(json, SearchProperty, row.ResultJson);
             if (string.Equals(json, row.ResultJson, StringComparison.Ordinal)) continue;
-            var observations = ObservationStore.ForStar(c, star.Id);
-            string hash = AnalyzeStarJob.InputHash(info, observations, updated.Settings, updated.Overrides, updated.FieldContext, registry);
+            // The analysis recorded its observations' digest: the hash needs no second read of them (the row is for
+            // the star's current revision, and new photometry always makes a new revision).
+            string digest = updated.ObservationsDigest ?? AnalyzeStarJob.ObservationsDigest(ObservationStore.ForStar(c, star.Id));
+            string hash = AnalyzeStarJob.InputHashFromDigest(info, digest, updated.Settings, updated.Overrides, updated.FieldContext, registry);
             var newRow = AnalyzeStarJob.ToRow(star.Id, row.Revision, updated, hash, clock.GetUtcNow().ToString("O"), json);
             using var tx = c.BeginTransaction();
             // Only while the star is still at this revision: a newer analysis supersedes this pass.

