@@ -39,6 +39,10 @@ public static class JobsSetup
                 InvisibilityTimeout = TimeSpan.FromSeconds(30),
                 UseSlidingInvisibilityTimeout = true,
                 QueuePollInterval = TimeSpan.FromMilliseconds(200),
+                // Hangfire takes a job's state lock for each state change (milliseconds). A worker SIGKILLed while
+                // holding one leaves the lock row behind, and with the default 10 minutes every other worker that
+                // picks that job up waits that long (seen in the fault test). Locks older than this count as abandoned.
+                DistributedLockTimeout = TimeSpan.FromSeconds(30),
             });
         });
         if (options.RunServer)

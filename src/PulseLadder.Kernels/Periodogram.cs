@@ -119,19 +119,27 @@ public static class Periodogram
             Gls(t, y, w, f0, df, power);
             return GlsVariantName;
         }
-        var (capacity, spread, ratio) = GlsNufftPlan.ChooseKernel(power.Length, SearchSumError);
-        int slot = System.Numerics.BitOperations.Log2((uint)GlsNufftPlan.FftLength(capacity, spread, ratio));
-        var plans = _threadSearchPlans ??= new GlsNufftPlan?[31];
-        GlsNufftPlan? plan = plans[slot];
-        plans[slot] = null; // off the thread while in use, as for the exact plan
-        if (plan is null) plan = GlsNufftPlan.ForAccuracy(f0, df, power.Length, SearchSumError);
-        else plan.Retarget(f0, df, power.Length);
+        var (plan, slot) = TakeSearchPlan(f0, df, power.Length);
         try
         {
             plan.Execute(t, y, w, power);
             return plan.MethodName;
         }
-        finally { plans[slot] = plan; }
+        finally { _threadSearchPlans![slot] = plan; }
+    }
+
+    /// <summary>This thread's search-grade plan for the FFT length of a grid of <paramref name="count"/>, taken off the
+    /// thread while in use (as for the exact plan); the caller puts it back in slot <c>Slot</c>.</summary>
+    private static (GlsNufftPlan Plan, int Slot) TakeSearchPlan(double f0, double df, int count)
+    {
+        var (capacity, spread, ratio) = GlsNufftPlan.ChooseKernel(count, SearchSumError);
+        int slot = System.Numerics.BitOperations.Log2((uint)GlsNufftPlan.FftLength(capacity, spread, ratio));
+        var plans = _threadSearchPlans ??= new GlsNufftPlan?[31];
+        GlsNufftPlan? plan = plans[slot];
+        plans[slot] = null;
+        if (plan is null) plan = GlsNufftPlan.ForAccuracy(f0, df, count, SearchSumError);
+        else plan.Retarget(f0, df, count);
+        return (plan, slot);
     }
 
     /// <summary>
@@ -142,15 +150,9 @@ public static class Periodogram
     public static void WindowForSearch(ReadOnlySpan<double> t, double f0, double df, Span<double> window)
     {
         if (window.Length == 0) return;
-        var (capacity, spread, ratio) = GlsNufftPlan.ChooseKernel(window.Length, SearchSumError);
-        int slot = System.Numerics.BitOperations.Log2((uint)GlsNufftPlan.FftLength(capacity, spread, ratio));
-        var plans = _threadSearchPlans ??= new GlsNufftPlan?[31];
-        GlsNufftPlan? plan = plans[slot];
-        plans[slot] = null;
-        if (plan is null) plan = GlsNufftPlan.ForAccuracy(f0, df, window.Length, SearchSumError);
-        else plan.Retarget(f0, df, window.Length);
+        var (plan, slot) = TakeSearchPlan(f0, df, window.Length);
         try { plan.Window(t, window); }
-        finally { plans[slot] = plan; }
+        finally { _threadSearchPlans![slot] = plan; }
     }
 
     /// <summary>Cost of <see cref="WindowForSearch"/> on a grid of <paramref name="count"/> frequencies in the units of
