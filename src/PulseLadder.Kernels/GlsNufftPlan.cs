@@ -250,14 +250,8 @@ public sealed class GlsNufftPlan
             _qr[i] = inv * c; _qi[i] = inv * s;
         }
         SpreadAndTransform(n);
-        int mr = _mr, half = _mm / 2;
-        for (int k = 0; k < Count; k++)
-        {
-            int kk = k - half;
-            int g = kk < 0 ? kk + mr : kk;
-            double re = _grid[2 * g] * _deconv[k], im = _grid[2 * g + 1] * _deconv[k];
-            window[k] = re * re + im * im;
-        }
+        Extract(_f1);
+        for (int k = 0; k < Count; k++) window[k] = _f1[2 * k] * _f1[2 * k] + _f1[2 * k + 1] * _f1[2 * k + 1];
     }
 
     [MethodImpl(MethodImplOptions.AggressiveOptimization)]
