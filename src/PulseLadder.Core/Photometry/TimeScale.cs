@@ -42,7 +42,21 @@ public static class TimeScales
         return false;
     }
 
-    public static string ToCode(this TimeScale scale) => Codes.First(c => c.Scale == scale).Code;
+    // Indexed by the enum's value: called once per stored observation, where a search with a capturing lambda
+    // allocated per call.
+    private static readonly string[] CodeByScale = BuildCodeByScale();
+
+    private static string[] BuildCodeByScale()
+    {
+        var codes = new string[Codes.Max(c => (int)c.Scale) + 1];
+        foreach (var (c, s) in Codes) codes[(int)s] = c;
+        return codes;
+    }
+
+    public static string ToCode(this TimeScale scale)
+        => (uint)scale < (uint)CodeByScale.Length && CodeByScale[(int)scale] is { } code
+            ? code
+            : throw new ArgumentOutOfRangeException(nameof(scale), scale, "Unknown time scale.");
 
     /// <summary>True for scales whose values are modified Julian dates (JD - 2400000.5).</summary>
     public static bool IsModified(this TimeScale scale) => scale is TimeScale.MjdUtc or TimeScale.MjdTt or TimeScale.BmjdTdb;
