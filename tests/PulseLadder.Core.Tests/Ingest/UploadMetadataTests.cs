@@ -18,6 +18,21 @@ public class UploadMetadataTests
         Assert.Null(error);
     }
 
+    // The stored codes are the lower-case names of the IVOA time scales with their reference point (common practice in
+    // this project's storage): every scale has one, and it reads back as the same scale.
+    [Fact]
+    public void ToCode_RoundTripsEveryScale()
+    {
+        foreach (var scale in Enum.GetValues<TimeScale>())
+        {
+            string code = scale.ToCode();
+            Assert.True(PulseLadder.Core.Photometry.TimeScales.TryParse(code, out var back), code);
+            Assert.Equal(scale, back);
+        }
+        Assert.Equal("bjd_tdb", TimeScale.BjdTdb.ToCode());
+        Assert.Throws<ArgumentOutOfRangeException>(() => ((TimeScale)99).ToCode());
+    }
+
     [Fact]
     public void TryParse_ReportsUnknownScale_WhenScaleGuessable()
     {
