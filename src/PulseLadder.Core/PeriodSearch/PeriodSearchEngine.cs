@@ -14,6 +14,9 @@ internal static class PeriodSearchEngine
     {
         public double ModelFrequency { get; set; }
         public double? ModelChi2 { get; set; }
+
+        /// <summary>At a grid frequency, not yet moved to the GLS maximum near it.</summary>
+        public bool OnGrid { get; init; }
     }
 
     /// <summary>Share of a band's chi2_0 that observer offsets must explain before the grid is searched again on
@@ -136,24 +139,21 @@ internal static class PeriodSearchEngine
         if (candidates.Count == 0)
             return (result with { FailureReason = "no_significant_period", Notes = [.. notes, "no_peak"], Periodogram = Thinned(power, grid, SpectralTools.Thin(power)) }, null);
 
-        // Refine each candidate on the combined GLS: the grid step is 1/(n0 T), the peak is known to a small fraction of it.
         var refined = new List<Candidate>(candidates.Count);
-        foreach (var k in candidates)
-        {
-            double fk = grid.At(k);
-            var (x, v) = RefinePeak(data, fk, grid.Df);
-            refined.Add(v >= power[k] ? new Candidate(x, v) : new Candidate(fk, power[k]));
-        }
+        foreach (var k in candidates) refined.Add(new Candidate(grid.At(k), power[k]) { OnGrid = true });
 
         // Re-rank with the multi-harmonic model + observer zero points.
         var orders = data.Bands.Select(b => HarmonicFit.SupportedHarmonics(b, harmonics)).ToArray();
         var refChi2 = data.Bands.Select(b => HarmonicFit.Fit(b, 0, 0) ?? b.Chi2Mean).ToArray();
         double chiRef = refChi2.Sum();
         bool modelUsable = orders.Any(o => o > 0) && chiRef > 0;
+        // Without the model the candidates are ranked by GLS power itself, so every one is refined first.
+        if (!modelUsable) RefineGlsPeaks(data, grid, refined);
         if (modelUsable)
         {
-            // Every candidate at its GLS frequency first; only the best few get the (costlier) local minimisation:
-            // the model optimum lies a small fraction of a grid step from the GLS peak.
+            // Every candidate at its grid frequency first (at most half a grid step, 1/(2 n0 T), from the peak: the model
+            // chi2 there is within a few % of the peak's chi2 drop of its local minimum); only the best few get the
+            // (costlier) local minimisation over +-2 grid steps, which holds the model optimum.
             foreach (var c in refined)
             {
                 double v = HarmonicFit.TotalChi2(data.Bands, orders, refChi2, c.Frequency);
@@ -184,7 +184,11 @@ internal static class PeriodSearchEngine
         double tol = Math.Max(0.5 / data.Baseline, 2 * grid.Df);
         var peaks = new List<PeriodPeak>();
         var stronger = new List<double>();
-        foreach (var c in ranked.Take(Math.Max(1, s.TopPeaks)))
+        var listed = ranked.Take(Math.Max(1, s.TopPeaks)).ToList();
+        // The listed peaks are given at the maximum of the combined GLS (the grid step is 1/(n0 T); the peak is
+        // known to a small fraction of it); the ranking above did not need it.
+        if (modelUsable) RefineGlsPeaks(data, grid, listed);
+        foreach (var c in listed)
         {
             var (fap, method) = Fap(c.Power, data, grid);
             var aliases = AliasLabels.For(c.Frequency, stronger, tol);
@@ -345,30 +349,37 @@ internal static class PeriodSearchEngine
         return method ?? Periodogram.GlsVariantName;
     }
 
+    /// <summary>Moves each grid candidate to the combined-GLS maximum near it, keeping the grid value when refinement
+    /// finds nothing higher (others, e.g. a double period placed by its model, stay where they are).</summary>
+    private static void RefineGlsPeaks(SearchData data, FrequencyGrid grid, List<Candidate> candidates)
+    {
+        for (int i = 0; i < candidates.Count; i++)
+        {
+            var c = candidates[i];
+            if (!c.OnGrid) continue;
+            var (x, v) = RefinePeak(data, c.Frequency, grid.Df);
+            if (v >= c.Power)
+                candidates[i] = new Candidate(x, v) { ModelFrequency = c.ModelFrequency, ModelChi2 = c.ModelChi2 };
+        }
+    }
+
     /// <summary>
-    /// Maximum of the combined power near grid peak <paramref name="fk"/>: two zoom levels of 33 frequencies
-    /// (+- df, then +- df/16; final step df/256), a parabola through the best three, one last evaluation there.
-    /// Each level is one kernel call per band: a call has a fixed cost far above that of one frequency, so this
-    /// beats a point-by-point 1-D search.
+    /// Maximum of the combined power near grid peak <paramref name="fk"/>: 33 frequencies over +- df (step df/16), a
+    /// parabola through the best three, one last evaluation there. The peak is ~n0 grid steps wide, so at step df/16
+    /// the parabola's vertex is off by ~(df/16)^2 / (n0 df), a few 1e-4 df. One kernel call per band: a call has a
+    /// fixed cost far above that of one frequency, so this beats a point-by-point 1-D search.
     /// </summary>
     internal static (double F, double Power) RefinePeak(SearchData data, double fk, double df)
     {
         const int m = 33;
         double center = fk, half = df, bestF = fk, bestP = double.NegativeInfinity;
-        double step = 0;
-        double[] p = [];
+        double step = 2 * half / (m - 1);
+        var g = new FrequencyGrid(center - half, step, m, false);
+        double[] p = CombinedPower(data, g);
         int j = 0;
-        for (int level = 0; level < 2; level++)
-        {
-            step = 2 * half / (m - 1);
-            var g = new FrequencyGrid(center - half, step, m, false);
-            p = CombinedPower(data, g);
-            j = 0;
-            for (int i = 1; i < m; i++) if (p[i] > p[j]) j = i;
-            if (p[j] > bestP) { bestP = p[j]; bestF = g.At(j); }
-            center = g.At(j);
-            half = step;
-        }
+        for (int i = 1; i < m; i++) if (p[i] > p[j]) j = i;
+        if (p[j] > bestP) { bestP = p[j]; bestF = g.At(j); }
+        center = g.At(j);
         if (j > 0 && j < m - 1)
         {
             double denom = p[j - 1] - 2 * p[j] + p[j + 1];
@@ -532,17 +543,28 @@ internal static class PeriodSearchEngine
         var refChi2 = data.Bands.Select(b => HarmonicFit.Fit(b, 0, 0) ?? b.Chi2Mean).ToArray();
         double half = 0.5 / T;
         const int steps = 20;
-        double bestF = frequency, bestC = double.PositiveInfinity;
-        for (int i = 0; i <= steps; i++)
-        {
-            double f = frequency - half + 2 * half * i / steps;
-            if (f <= 0) continue;
-            double c = HarmonicFit.TotalChi2(data.Bands, startOrders, refChi2, f);
-            if (c < bestC) { bestC = c; bestF = f; }
-        }
         double stepF = 2 * half / steps;
+        double lo, hi;
+        if (ModelMinimumNear(search, frequency, stepF) is { } hint)
+        {
+            // The search already minimised its harmonic model (same data, a model of similar order) next to this peak: the
+            // minimum of this model lies a small fraction of a step from it.
+            lo = hint - 2 * stepF; hi = hint + 2 * stepF;
+        }
+        else
+        {
+            double bestF = frequency, bestC = double.PositiveInfinity;
+            for (int i = 0; i <= steps; i++)
+            {
+                double f = frequency - half + 2 * half * i / steps;
+                if (f <= 0) continue;
+                double c = HarmonicFit.TotalChi2(data.Bands, startOrders, refChi2, f);
+                if (c < bestC) { bestC = c; bestF = f; }
+            }
+            lo = bestF - stepF; hi = bestF + stepF;
+        }
         var (fb, _) = Brent.Minimize(f => HarmonicFit.TotalChi2(data.Bands, startOrders, refChi2, f),
-            Math.Max(bestF - stepF, 1e-12), bestF + stepF, stepF * 1e-6);
+            Math.Max(lo, 1e-12), hi, stepF * 1e-6);
 
         // Order per band by BIC at that frequency.
         var orders = new int[data.Bands.Count];
@@ -616,6 +638,20 @@ internal static class PeriodSearchEngine
             Chi2Reduced = sol.Chi2Reduced, FrequencyErrMo99 = Mo99ForBestBand(data, orders, sol),
             ReferenceEpochBjd = data.ReferenceEpoch, ObserverOffsets = offsets, PdmCandidates = pdm,
         };
+    }
+
+    /// <summary>
+    /// Where the search's harmonic model had its minimum for the peak at exactly <paramref name="frequency"/> (the
+    /// pipeline refines the search's own peak), when that lies within <paramref name="step"/> of it; null for any other
+    /// frequency (a reviewer's period), which gets the full local scan.
+    /// </summary>
+    private static double? ModelMinimumNear(PeriodSearchResult? search, double frequency, double step)
+    {
+        if (search?.Peaks is not { } peaks) return null;
+        foreach (var p in peaks)
+            if (p.Frequency == frequency && p.ModelFrequency is { } mf && mf > 0 && Math.Abs(mf - frequency) <= step)
+                return mf;
+        return null;
     }
 
     /// <summary>Montgomery &amp; O'Donoghue (1999): sigma_f = sqrt(6/N) sigma_m / (pi T A).</summary>

@@ -11,8 +11,10 @@ namespace PulseLadder.Core.Pipeline;
 /// 0.4.0: long search grids and their spectral window by the NUFFT at 1e-9 sum error (power within a few 1e-10 of the
 ///        exact kernel; peaks still refined with it); faster refinement fit; TT->BJD_TDB interpolated per star
 ///        (within one JD ulp); input hash over a recorded digest of the observations.
+/// 0.5.0: candidates ranked by the harmonic model at their grid frequency, only listed peaks refined on the GLS (one
+///        zoom level); the refinement fit starts from the search's model minimum.
 /// </summary>
 public static class PipelineVersion
 {
-    public const string Current = "0.4.0";
+    public const string Current = "0.5.0";
 }
