@@ -59,6 +59,9 @@ public sealed class Database
         throw new ArgumentException($"Database setting must start with 'sqlite:' or 'postgres:', got '{setting}'.");
     }
 
+    /// <summary>Largest part of an SQLite database file a connection reads through a memory map.</summary>
+    internal const long SqliteMmapBytes = 1L << 30;
+
     public DbConnection Open()
     {
         if (Dialect == Dialect.Sqlite)
@@ -70,7 +73,12 @@ public sealed class Database
             // busy_timeout: a writer that meets another's lock waits inside SQLite (sleeps of 1-100 ms, retried as
             // soon as the lock is free) instead of returning "busy" to Microsoft.Data.Sqlite, whose own retry waited
             // far longer: two analysis threads went from 1.3x to 1.9x one thread (docs/PERFORMANCE.md).
-            cmd.CommandText = "PRAGMA journal_mode=WAL; PRAGMA foreign_keys=ON; PRAGMA synchronous=NORMAL; PRAGMA busy_timeout=60000;";
+            // mmap_size: pages of the database file are read through a memory map instead of a read() per page. A
+            // connection's page cache is dropped whenever another connection has committed (the analysis threads
+            // commit every few ms), so a star's observations (hundreds of rows spread over as many pages) were read
+            // from the OS with one system call and a 4 KB copy each. UploadWriter turns it off for bulk loads.
+            cmd.CommandText = "PRAGMA journal_mode=WAL; PRAGMA foreign_keys=ON; PRAGMA synchronous=NORMAL; PRAGMA busy_timeout=60000; PRAGMA mmap_size="
+                + SqliteMmapBytes.ToString(System.Globalization.CultureInfo.InvariantCulture) + ";";
             cmd.ExecuteNonQuery();
             return c;
         }

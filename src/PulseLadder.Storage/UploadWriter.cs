@@ -44,15 +44,18 @@ public static class UploadWriter
     {
         using var c = db.Open();
         bool sqlite = c is SqliteConnection;
-        // A no-op inside a transaction, so set before it begins; restored for the pooled connection.
-        if (sqlite) c.Execute("PRAGMA foreign_keys=OFF");
+        // A no-op inside a transaction, so set before it begins; restored for the pooled connection. The memory map
+        // is off too: a bulk load (and the index rebuild after it) reads the whole table once, and through the map
+        // every page read would stay in this process's resident set.
+        if (sqlite) c.Execute("PRAGMA foreign_keys=OFF; PRAGMA mmap_size=0;");
         try
         {
             return Store(c, sqlite, starList, photometry, actor, clock);
         }
         finally
         {
-            if (sqlite && c.State == System.Data.ConnectionState.Open) c.Execute("PRAGMA foreign_keys=ON");
+            if (sqlite && c.State == System.Data.ConnectionState.Open)
+                c.Execute("PRAGMA foreign_keys=ON; PRAGMA mmap_size=" + Database.SqliteMmapBytes.ToString(System.Globalization.CultureInfo.InvariantCulture) + ";");
         }
     }
 
