@@ -157,6 +157,34 @@ public sealed class StorageSuiteTests
     }
 
     [Fact]
+    public void ForStar_NativeSqlitePath_ReadsWhatTheAdoNetReaderReads()
+    {
+        // Reference: the same query through Microsoft.Data.Sqlite's data reader (ObservationStore.ForStarPortable).
+        // Two uploads in different time scales, non-ASCII and empty observers, null and free-text flags.
+        var db = Fresh("sqlite");
+        string[] observers = ["Åsa", "obs-1", "", "천문대"];
+        PhotometryFile Upload(string sha, TimeScale scale, double t0, int n) => new("u-" + sha + ".csv", sha, scale, 0,
+            Enumerable.Range(0, n).Select(i => new PhotometryRow(i % 3 == 0 ? "S2" : "S1",
+                new Observation(0, t0 + i * 0.37, scale, i % 2 == 0 ? "V" : "Ks", 14 + 0.003 * i, 0.01 + 1e-4 * i,
+                    observers[i % observers.Length], i % 9 == 0 ? "saturated " + i : i % 4 == 0 ? "" : null), i + 2)).ToList());
+        UploadWriter.Store(db, Stars("S1", "S2"), [Upload("a", TimeScale.JdUtc, 2460000.5, 150)], "tester", Clock);
+        UploadWriter.Store(db, null, [Upload("b", TimeScale.BmjdTdb, 60100.25, 90)], "tester", Clock);
+        using var c = db.Open();
+        var ids = StarStore.IdsByName(c);
+        foreach (long id in ids.Values)
+        {
+            var reference = ObservationStore.ForStarPortable(c, id, null);
+            Assert.NotEmpty(reference);
+            Assert.Equal(reference, ObservationStore.ForStar(c, id));
+            // Inside an open transaction too (the job's field pass reads there).
+            using var tx = c.BeginTransaction();
+            Assert.Equal(reference, ObservationStore.ForStar(c, id, tx));
+            tx.Commit();
+        }
+        Assert.Empty(ObservationStore.ForStar(c, 987654));
+    }
+
+    [Fact]
     public void Store_KeepsIndexesAndStoresNothing_WhenABulkLoadFailsAfterTheIndexesWereDropped()
     {
         var db = Fresh("sqlite");
