@@ -172,15 +172,31 @@ internal static class BandFitter
             return Math.Max(0, Math.Min(maxOrder, Math.Min(byPoints, byGap)));
         }
 
+        private int[]? _byPhase;
+
+        /// <summary>Largest phase gap (wrapping at 1) between active points. The phases are fixed for the band, only
+        /// the active set changes between calls (clipping): they are sorted once.</summary>
         public double LargestGap(bool[] active)
         {
-            var ph = new List<double>(N);
-            for (int j = 0; j < N; j++) if (active[j]) ph.Add(Phase[j]);
-            if (ph.Count == 0) return 1.0;
-            ph.Sort();
-            double gap = ph[0] + 1.0 - ph[^1];
-            for (int j = 1; j < ph.Count; j++) gap = Math.Max(gap, ph[j] - ph[j - 1]);
-            return gap;
+            if (_byPhase is null)
+            {
+                var order = new int[N];
+                var keys = (double[])Phase.Clone();
+                for (int j = 0; j < N; j++) order[j] = j;
+                Array.Sort(keys, order);
+                _byPhase = order;
+            }
+            double first = double.NaN, prev = double.NaN, gap = 0;
+            foreach (int j in _byPhase)
+            {
+                if (!active[j]) continue;
+                double ph = Phase[j];
+                if (double.IsNaN(first)) first = ph;
+                else gap = Math.Max(gap, ph - prev);
+                prev = ph;
+            }
+            if (double.IsNaN(first)) return 1.0;
+            return Math.Max(gap, first + 1.0 - prev);
         }
     }
 
