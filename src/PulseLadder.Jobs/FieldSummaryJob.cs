@@ -21,9 +21,35 @@ public sealed class FieldSummaryJob(Database db, TimeProvider clock, Calibration
 
     private static readonly string SearchProperty = Json.Options.PropertyNamingPolicy!.ConvertName(nameof(StarAnalysis.Search));
 
+    /// <summary>A request from <see cref="IAnalysisQueue.EnqueueFieldSummary"/>: dropped when a pass of this process that
+    /// started after it was issued has completed (<see cref="FieldPassRequests"/>), else the pass runs.</summary>
+    [Queue("summary")]
+    [AutomaticRetry(Attempts = 3)]
+    public void Run(long fieldId, string requester, long ticket)
+    {
+        string key = db.ConnectionString;
+        lock (FieldPassRequests.LockFor(key, fieldId))
+        {
+            if (FieldPassRequests.IsCovered(key, fieldId, requester, ticket))
+            {
+                log.LogDebug("Field {FieldId}: request {Ticket} already covered by a completed pass", fieldId, ticket);
+                return;
+            }
+            long upTo = FieldPassRequests.LastIssued(key, fieldId);
+            Pass(fieldId);
+            FieldPassRequests.MarkCovered(key, fieldId, upTo);
+        }
+    }
+
+    /// <summary>The pass itself, whatever asked for it (also the form of jobs queued before requests carried tickets).</summary>
     [Queue("summary")]
     [AutomaticRetry(Attempts = 3)]
     public void Run(long fieldId)
+    {
+        lock (FieldPassRequests.LockFor(db.ConnectionString, fieldId)) Pass(fieldId);
+    }
+
+    private void Pass(long fieldId)
     {
         using var c = db.Open();
         int changed = ClassifyWithField(c, fieldId);
@@ -67,12 +93,20 @@ public sealed class FieldSummaryJob(Database db, TimeProvider clock, Calibration
             .Where(x => x.Result is not null)
             .ToList();
         FieldContext? context = FieldPass.BuildContext(current.Select(x => x.Result!));
+        var compact = context?.Compact();
         int changed = 0;
         foreach (var (row, result) in current)
         {
             if (result!.Outcome != "ok" || (context is null && result.FieldContext is null)) continue;
             var star = stars[row.StarId];
             var info = StarStore.ToStarInfo(star);
+            // The analysis recorded its observations' digest: the hash needs no second read of them (the row is for
+            // the star's current revision, and new photometry always makes a new revision).
+            string digest = result.ObservationsDigest ?? AnalyzeStarJob.ObservationsDigest(ObservationStore.ForStar(c, star.Id));
+            // The input hash covers everything a result depends on, the field context included: a row whose hash is
+            // the one this pass would give was computed with this very context (an earlier pass) and would come out
+            // the same, so it is not rebuilt (a repeated pass then costs the reading only).
+            if (AnalyzeStarJob.InputHashFromDigest(info, digest, result.Settings, result.Overrides, compact, registry) == row.InputHash) continue;
             var updated = FieldPass.Reclassify(result, info, context, registry);
             // The pass rebuilds classes, distance and flags around the same search object: its stored text (with the
             // curves) is the search of the new result.
@@ -81,9 +115,6 @@ public sealed class FieldSummaryJob(Database db, TimeProvider clock, Calibration
             string json = Json.Serialize(updated);
             if (updated.Search is not null) json = Json.WithPropertyFrom(json, SearchProperty, row.ResultJson);
             if (string.Equals(json, row.ResultJson, StringComparison.Ordinal)) continue;
-            // The analysis recorded its observations' digest: the hash needs no second read of them (the row is for
-            // the star's current revision, and new photometry always makes a new revision).
-            string digest = updated.ObservationsDigest ?? AnalyzeStarJob.ObservationsDigest(ObservationStore.ForStar(c, star.Id));
             string hash = AnalyzeStarJob.InputHashFromDigest(info, digest, updated.Settings, updated.Overrides, updated.FieldContext, registry);
             var newRow = AnalyzeStarJob.ToRow(star.Id, row.Revision, updated, hash, clock.GetUtcNow().ToString("O"), json);
             using var tx = c.BeginTransaction();

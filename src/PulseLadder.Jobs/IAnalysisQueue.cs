@@ -18,7 +18,7 @@ public interface IAnalysisQueue
     }
 }
 
-internal sealed class HangfireAnalysisQueue(IBackgroundJobClient client, JobsOptions options) : IAnalysisQueue
+internal sealed class HangfireAnalysisQueue(IBackgroundJobClient client, JobsOptions options, PulseLadder.Storage.Database db) : IAnalysisQueue
 {
     public void EnqueueStar(long starId, long revision) => client.Enqueue<AnalyzeStarJob>(j => j.Run(starId, revision));
 
@@ -35,5 +35,10 @@ internal sealed class HangfireAnalysisQueue(IBackgroundJobClient client, JobsOpt
         }
     }
 
-    public void EnqueueFieldSummary(long fieldId) => client.Enqueue<FieldSummaryJob>(j => j.Run(fieldId));
+    public void EnqueueFieldSummary(long fieldId)
+    {
+        string requester = FieldPassRequests.ProcessId;
+        long ticket = FieldPassRequests.Issue(db.ConnectionString, fieldId);
+        client.Enqueue<FieldSummaryJob>(j => j.Run(fieldId, requester, ticket));
+    }
 }
