@@ -1,3 +1,5 @@
+using System.Runtime.CompilerServices;
+using System.Runtime.Intrinsics;
 namespace PulseLadder.Core.LightCurves;
 
 /// <summary>
@@ -39,13 +41,23 @@ internal static class LinearFit
                 int row = i * stride;
                 double wi = w[i], yi = y[i];
                 yWy += wi * yi * yi;
+                ref double xr = ref x[row];
                 for (int j = 0; j < p; j++)
                 {
                     double wxj = wi * x[row + j];
                     if (wxj == 0) continue;
                     _b[j] += wxj * yi;
-                    int aj = j * p;
-                    for (int k = 0; k <= j; k++) a[aj + k] += wxj * x[row + k];
+                    // Row j of the lower triangle, four at a time: a multiply then an add per element, as in the
+                    // scalar tail (no fused multiply-add), so the sums are the same bits either way.
+                    ref double ar = ref a[j * p];
+                    int k = 0;
+                    if (Vector256.IsHardwareAccelerated)
+                    {
+                        var wv = Vector256.Create(wxj);
+                        for (; k + 4 <= j + 1; k += 4)
+                            (Vector256.LoadUnsafe(ref ar, (nuint)k) + wv * Vector256.LoadUnsafe(ref xr, (nuint)k)).StoreUnsafe(ref ar, (nuint)k);
+                    }
+                    for (; k <= j; k++) Unsafe.Add(ref ar, k) += wxj * Unsafe.Add(ref xr, k);
                 }
             }
             Used = used;
