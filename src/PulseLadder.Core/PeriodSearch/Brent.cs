@@ -51,4 +51,37 @@ internal static class Brent
         }
         return (x, fx);
     }
+
+    /// <summary>
+    /// Minimum near <paramref name="x0"/> of a function that is close to a parabola there: three points h apart (the
+    /// value at x0, <paramref name="f0"/>, is given), moved by h towards the lower end while an end is lower (at most
+    /// <paramref name="maxShifts"/> times), then the vertex of the parabola through them. Returns the lowest point
+    /// evaluated. For a peak of width W sampled at h the vertex is within ~h^2/(6 W) of the minimum; three or four
+    /// evaluations where a bracketing search needs a dozen.
+    /// </summary>
+    public static (double X, double Value) ParabolicNear(Func<double, double> fn, double x0, double f0, double h, int maxShifts)
+    {
+        double F(double x) { double v = fn(x); return double.IsFinite(v) ? v : double.PositiveInfinity; }
+        double xc = x0, fc = double.IsFinite(f0) ? f0 : double.PositiveInfinity;
+        double fm = F(xc - h), fp = F(xc + h);
+        for (int i = 0; i < maxShifts && (fm < fc || fp < fc); i++)
+        {
+            if (fm < fp) { fp = fc; fc = fm; xc -= h; fm = F(xc - h); }
+            else { fm = fc; fc = fp; xc += h; fp = F(xc + h); }
+        }
+        double bestX = xc, bestF = fc;
+        if (fm < bestF) { bestX = xc - h; bestF = fm; }
+        if (fp < bestF) { bestX = xc + h; bestF = fp; }
+        double denom = fm - 2 * fc + fp;
+        if (denom > 0 && double.IsFinite(denom))
+        {
+            double xv = xc + 0.5 * h * (fm - fp) / denom;
+            if (Math.Abs(xv - xc) <= h)
+            {
+                double fv = F(xv);
+                if (fv < bestF) { bestX = xv; bestF = fv; }
+            }
+        }
+        return (bestX, bestF);
+    }
 }

@@ -161,8 +161,10 @@ internal static class PeriodSearchEngine
             }
             foreach (var c in refined.Where(c => c.ModelChi2 is not null).OrderBy(c => c.ModelChi2).Take(RankingRefined).ToList())
             {
-                double h = 2 * grid.Df;
-                var (x, v) = Brent.Minimize(f => HarmonicFit.TotalChi2(data.Bands, orders, refChi2, f), c.Frequency - h, c.Frequency + h, grid.Df * 1e-2);
+                // Half a grid step apart (the peak is ~n0 steps wide: the vertex lands within ~1e-2 step of the
+                // minimum, plenty for ranking; the refinement fit starts from it), shifted up to +-2 steps.
+                double h = 0.5 * grid.Df;
+                var (x, v) = Brent.ParabolicNear(f => HarmonicFit.TotalChi2(data.Bands, orders, refChi2, f), c.Frequency, c.ModelChi2!.Value, h, 4);
                 if (double.IsFinite(v) && v < c.ModelChi2) { c.ModelFrequency = x; c.ModelChi2 = v; }
             }
         }
@@ -544,12 +546,15 @@ internal static class PeriodSearchEngine
         double half = 0.5 / T;
         const int steps = 20;
         double stepF = 2 * half / steps;
-        double lo, hi;
-        if (ModelMinimumNear(search, frequency, stepF) is { } hint)
+        double Chi2(double f) => HarmonicFit.TotalChi2(data.Bands, startOrders, refChi2, f);
+        double fb;
+        if (ModelMinimumNear(search, frequency, half) is { } hint)
         {
-            // The search already minimised its harmonic model (same data, a model of similar order) next to this peak: the
-            // minimum of this model lies a small fraction of a step from it.
-            lo = hint - 2 * stepF; hi = hint + 2 * stepF;
+            // The search already minimised its harmonic model (same data, a model of similar order) next to this peak:
+            // the minimum of this model lies a small fraction of a step from it. Two parabolic zooms (steps stepF/2,
+            // then stepF/32) put the start within ~1e-5 of a grid step of it, far inside the refinement fit's reach.
+            var (x1, c1) = Brent.ParabolicNear(Chi2, hint, Chi2(hint), stepF / 2, 4);
+            (fb, _) = Brent.ParabolicNear(Chi2, x1, c1, stepF / 32, 4);
         }
         else
         {
@@ -558,13 +563,11 @@ internal static class PeriodSearchEngine
             {
                 double f = frequency - half + 2 * half * i / steps;
                 if (f <= 0) continue;
-                double c = HarmonicFit.TotalChi2(data.Bands, startOrders, refChi2, f);
+                double c = Chi2(f);
                 if (c < bestC) { bestC = c; bestF = f; }
             }
-            lo = bestF - stepF; hi = bestF + stepF;
+            (fb, _) = Brent.Minimize(Chi2, Math.Max(bestF - stepF, 1e-12), bestF + stepF, stepF * 1e-6);
         }
-        var (fb, _) = Brent.Minimize(f => HarmonicFit.TotalChi2(data.Bands, startOrders, refChi2, f),
-            Math.Max(lo, 1e-12), hi, stepF * 1e-6);
 
         // Order per band by BIC at that frequency.
         var orders = new int[data.Bands.Count];
@@ -642,8 +645,8 @@ internal static class PeriodSearchEngine
 
     /// <summary>
     /// Where the search's harmonic model had its minimum for the peak at exactly <paramref name="frequency"/> (the
-    /// pipeline refines the search's own peak), when that lies within <paramref name="step"/> of it; null for any other
-    /// frequency (a reviewer's period), which gets the full local scan.
+    /// pipeline refines the search's own peak), when that lies within <paramref name="step"/> of it (the range the full
+    /// local scan would cover); null for any other frequency (a reviewer's period), which gets the full scan.
     /// </summary>
     private static double? ModelMinimumNear(PeriodSearchResult? search, double frequency, double step)
     {
