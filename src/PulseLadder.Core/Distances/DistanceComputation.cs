@@ -1,3 +1,4 @@
+using System.Runtime.Intrinsics;
 using MathNet.Numerics.Distributions;
 using PulseLadder.Core.Calibration;
 using PulseLadder.Core.Extinction;
@@ -342,7 +343,7 @@ internal static class DistanceComputation
                     }
                     else
                     {
-                        double u = Math.Clamp(ebvLow + (1 - ebvLow) * rng.NextDouble(), 1e-15, 1 - 1e-15);
+                        double u = Math.Clamp(ebvLow + (1 - ebvLow) * g.NextUniform(), 1e-15, 1 - 1e-15);
                         ed = Math.Max(0, x.Ebv + x.EbvErr * Normal.InvCDF(0, 1, u));
                     }
                 }
@@ -567,12 +568,67 @@ internal static class DistanceComputation
     /// </summary>
     internal sealed class Gauss(Random rng)
     {
+        // Uniforms are drawn from rng in blocks, in order, and every one is also turned into a deviate up front (the
+        // central region four at a time): the k-th value consumed, as a uniform or as a deviate, is the k-th the
+        // generator gave, so the sequence is the one drawing them one by one would give, bit for bit.
+        private const int Block = 64;
+        private readonly double[] _u = new double[Block], _z = new double[Block];
+        private int _next = Block;
+
+        /// <summary>Next standard normal deviate (a zero uniform is skipped, as the inversion needs 0 &lt; p &lt; 1).</summary>
         public double Next()
         {
-            double u;
-            do u = rng.NextDouble(); while (u == 0.0);
-            return InverseNormal(u);
+            while (true)
+            {
+                if (_next == Block) Refill();
+                int k = _next++;
+                if (_u[k] != 0.0) return _z[k];
+            }
         }
+
+        /// <summary>Next uniform of the same stream, in [0, 1).</summary>
+        public double NextUniform()
+        {
+            if (_next == Block) Refill();
+            return _u[_next++];
+        }
+
+        private void Refill()
+        {
+            for (int i = 0; i < Block; i++) _u[i] = rng.NextDouble();
+            InverseNormalBlock(_u, _z);
+            _next = 0;
+        }
+
+        /// <summary><see cref="InverseNormal"/> of each element: the central branch in vectors with the scalar
+        /// operations (multiply, add and divide, no fused steps), so the same bits; tails and zeros one by one.</summary>
+        internal static void InverseNormalBlock(ReadOnlySpan<double> p, Span<double> z)
+        {
+            int i = 0;
+            if (Vector256.IsHardwareAccelerated)
+            {
+                var lo = Vector256.Create(PLow);
+                var hi = Vector256.Create(1 - PLow);
+                var half = Vector256.Create(0.5);
+                for (; i + 4 <= p.Length; i += 4)
+                {
+                    var pv = Vector256.Create(p.Slice(i, 4));
+                    var c = pv - half;
+                    var r = c * c;
+                    var num = ((((C(-3.969683028665376e+01) * r + C(2.209460984245205e+02)) * r - C(2.759285104469687e+02)) * r + C(1.383577518672690e+02)) * r - C(3.066479806614716e+01)) * r + C(2.506628277459239e+00);
+                    var den = ((((C(-5.447609879822406e+01) * r + C(1.615858368580409e+02)) * r - C(1.556989798598866e+02)) * r + C(6.680131188771972e+01)) * r - C(1.328068155288572e+01)) * r + C(1.0);
+                    (num * c / den).CopyTo(z.Slice(i, 4));
+                    // Lanes outside the central region (p < PLow, p > 1 - PLow, NaN): scalar.
+                    var central = Vector256.GreaterThanOrEqual(pv, lo) & Vector256.LessThanOrEqual(pv, hi);
+                    if (central.ExtractMostSignificantBits() != 0b1111)
+                        for (int j = i; j < i + 4; j++)
+                            if (!(p[j] >= PLow && p[j] <= 1 - PLow)) z[j] = InverseNormal(p[j]);
+                }
+            }
+            for (; i < p.Length; i++) z[i] = InverseNormal(p[i]);
+        }
+
+        private static Vector256<double> C(double v) => Vector256.Create(v);
 
         private const double PLow = 0.02425;
 

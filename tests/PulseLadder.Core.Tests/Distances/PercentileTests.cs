@@ -61,6 +61,40 @@ public class GaussTests
         Assert.True(Math.Abs(actual - expected) <= 2e-9 * Math.Max(1, Math.Abs(expected)), $"p={p}: {actual} vs {expected}");
     }
 
+    // The block path against the one-at-a-time formula (the project's reference, itself checked against Math.NET above):
+    // the same bits for uniforms over (0, 1), both tails, the branch edges and NaN.
+    [Fact]
+    public void InverseNormalBlock_GivesTheScalarFormulasBits()
+    {
+        var rng = new Random(7);
+        var p = new double[100_003];
+        for (int i = 0; i < p.Length; i++) p[i] = rng.NextDouble();
+        double[] special = [0.02425, Math.BitDecrement(0.02425), 1 - 0.02425, Math.BitIncrement(1 - 0.02425), 1e-300, 0.5, double.Epsilon, Math.BitDecrement(1.0), double.NaN];
+        special.CopyTo(p, 17);
+        var z = new double[p.Length];
+        DistanceComputation.Gauss.InverseNormalBlock(p, z);
+        for (int i = 0; i < p.Length; i++)
+        {
+            double want = DistanceComputation.Gauss.InverseNormal(p[i]);
+            Assert.True(BitConverter.DoubleToInt64Bits(want) == BitConverter.DoubleToInt64Bits(z[i]), $"p={p[i]:R}: {z[i]:R} vs {want:R}");
+        }
+    }
+
+    // Deviates and uniforms drawn in blocks come out as drawing them one by one from System.Random would give them.
+    [Fact]
+    public void Next_AndNextUniform_FollowTheGeneratorsSequence()
+    {
+        var g = new DistanceComputation.Gauss(new Random(11));
+        var r = new Random(11);
+        for (int i = 0; i < 1000; i++)
+        {
+            if (i % 7 == 3) Assert.Equal(r.NextDouble(), g.NextUniform());
+            double u;
+            do u = r.NextDouble(); while (u == 0.0);
+            Assert.Equal(DistanceComputation.Gauss.InverseNormal(u), g.Next());
+        }
+    }
+
     // Moments of 200000 deviates: mean 0 +- 0.01, variance 1 +- 0.01, 15.87% below -1 +- 0.3% (normal distribution).
     [Fact]
     public void Next_HasStandardNormalMoments()
