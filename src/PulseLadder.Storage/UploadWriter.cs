@@ -73,14 +73,26 @@ public static class UploadWriter
             else
             {
                 var known = StarStore.IdsByName(c, tx);
+                // Fields repeat across a list (one lookup each, not one per star), and a star not stored yet is
+                // inserted without first being looked up (three statements per star became one).
+                var fieldIds = new Dictionary<string, long>(StringComparer.Ordinal);
                 foreach (var s in starList.Stars)
                 {
-                    long fieldId = FieldStore.GetOrCreate(c, tx, s.Field, now);
-                    bool isNew = !known.ContainsKey(s.Name);
-                    var (id, didChange) = StarStore.Upsert(c, tx, s, fieldId, now);
-                    if (isNew) added++;
-                    else if (didChange) changed++;
-                    if (didChange) touched.Add(id);
+                    if (!fieldIds.TryGetValue(s.Field, out long fieldId)) fieldIds.Add(s.Field, fieldId = FieldStore.GetOrCreate(c, tx, s.Field, now));
+                    if (!known.ContainsKey(s.Name))
+                    {
+                        long id = StarStore.Insert(c, tx, s, fieldId, now);
+                        known.Add(s.Name, id);
+                        added++;
+                        touched.Add(id);
+                        continue;
+                    }
+                    var (existingId, didChange) = StarStore.Upsert(c, tx, s, fieldId, now);
+                    if (didChange)
+                    {
+                        changed++;
+                        touched.Add(existingId);
+                    }
                 }
                 UploadStore.Insert(c, tx, new UploadRow
                 {
