@@ -1,4 +1,5 @@
 using System.Data.Common;
+using System.Runtime.InteropServices;
 using Dapper;
 using Microsoft.Data.Sqlite;
 using SQLitePCL;
@@ -82,30 +83,39 @@ public static class ObservationStore
     }
 
     /// <summary>
-    /// SQLite: statements prepared once and stepped through the native API, values bound as their native types and
-    /// repeated texts (band, observer, time scale) bound from cached UTF-8 bytes. The ADO.NET path spends most of its
-    /// time per row in parameter objects, boxing and type inference, not in SQLite. Rows are buffered and inserted
+    /// SQLite: statements prepared once and stepped through the native API on raw handles (<see cref="SqliteDirect"/>),
+    /// values bound as their native types and repeated texts (band, observer, time scale) bound from cached UTF-8 bytes
+    /// in native memory, which SQLite then reads without copying. The ADO.NET path spends most of its time per row in
+    /// parameter objects, boxing and type inference, not in SQLite. Rows are buffered and inserted
     /// <see cref="RowsPerStatement"/> at a time by one multi-row INSERT: each statement step has a fixed cost (cursor
-    /// opening, reset, the native calls' handle checks) that is then paid once per group of rows; the last rows go
-    /// through the one-row statement.
+    /// opening, reset) that is then paid once per group of rows; the last rows go through the one-row statement.
     /// </summary>
-    private sealed class SqliteNative : BulkInserter
+    private sealed unsafe class SqliteNative : BulkInserter
     {
         /// <summary>Rows per multi-row INSERT (10 values each, well under SQLite's 32,766 parameter limit).</summary>
         internal const int RowsPerStatement = 32;
 
+        /// <summary>Distinct texts kept as native UTF-8 (strings seen once, e.g. free-text flags, are not worth more).</summary>
+        private const int MaxCachedTexts = 4096;
+
         private const string Columns = "INSERT INTO observations (upload_id, star_id, line, time, time_scale, band, mag, mag_err, observer, flag) VALUES ";
 
         private readonly sqlite3 _db;
-        private readonly Prepared _one;
-        private readonly Prepared _many;
+        private readonly nint _dbPtr;
+        private bool _dbRef;
+        private readonly Prepared? _one;
+        private readonly Prepared? _many;
         private readonly long _cacheBefore;
-        private readonly Dictionary<string, byte[]> _utf8 = new(StringComparer.Ordinal);
+        private readonly Dictionary<string, NativeText> _utf8 = new(StringComparer.Ordinal);
         // Texts usually arrive as the parser's interned instances: looked up by reference first (no hashing of content).
-        private readonly Dictionary<string, byte[]> _utf8ByInstance = new(ReferenceEqualityComparer.Instance);
+        private readonly Dictionary<string, NativeText> _utf8ByInstance = new(ReferenceEqualityComparer.Instance);
+        private byte[] _scratch = new byte[256];
         private readonly ObservationToStore[] _pending = new ObservationToStore[RowsPerStatement];
         private int _inPending;
         private bool _disposed;
+
+        /// <summary>UTF-8 bytes of a text in native memory, owned by the inserter until it is disposed.</summary>
+        private readonly record struct NativeText(nint Bytes, int Length);
 
         /// <summary>
         /// A prepared statement and the text instance last bound to each parameter: SQLite keeps bindings across
@@ -114,14 +124,17 @@ public static class ObservationStore
         /// </summary>
         private sealed class Prepared
         {
-            public readonly sqlite3_stmt Stmt;
+            public readonly nint Stmt;
             public readonly object?[] Bound;
 
-            public Prepared(sqlite3 db, int rows, long uploadId)
+            public Prepared(sqlite3 db, nint dbPtr, int rows, long uploadId)
             {
-                Check(db, raw.sqlite3_prepare_v2(db, Columns + Values(rows), out Stmt));
+                byte[] sql = System.Text.Encoding.UTF8.GetBytes(Columns + Values(rows) + "\0");
+                nint stmt;
+                fixed (byte* p = sql) Check(db, SqliteDirect.Prepare(dbPtr, p, sql.Length, &stmt, 0));
+                Stmt = stmt;
                 Bound = new object?[rows * 10 + 1];
-                for (int i = 0; i < rows; i++) Check(db, raw.sqlite3_bind_int64(Stmt, i * 10 + 1, uploadId));
+                for (int i = 0; i < rows; i++) Check(db, SqliteDirect.BindInt64(Stmt, i * 10 + 1, uploadId));
             }
         }
 
@@ -135,8 +148,19 @@ public static class ObservationStore
             // the table and the star index in memory; restored on dispose since pooled connections are reused.
             _cacheBefore = PragmaCacheSize(_db);
             Exec(_db, "PRAGMA cache_size=-65536");
-            _one = new Prepared(_db, 1, uploadId);
-            _many = new Prepared(_db, RowsPerStatement, uploadId);
+            try
+            {
+                // One reference on the connection's handle for the whole load instead of one per native call.
+                _db.DangerousAddRef(ref _dbRef);
+                _dbPtr = _db.DangerousGetHandle();
+                _one = new Prepared(_db, _dbPtr, 1, uploadId);
+                _many = new Prepared(_db, _dbPtr, RowsPerStatement, uploadId);
+            }
+            catch
+            {
+                Dispose();
+                throw;
+            }
         }
 
         private static string Values(int rows)
@@ -150,69 +174,88 @@ public static class ObservationStore
             return sb.ToString();
         }
 
-        private byte[] Bytes(string s)
+        private bool TryCached(string s, out NativeText t)
         {
-            if (_utf8ByInstance.TryGetValue(s, out var b)) return b;
-            if (!_utf8.TryGetValue(s, out b))
+            if (_utf8ByInstance.TryGetValue(s, out t)) return true;
+            if (!_utf8.TryGetValue(s, out t))
             {
-                b = System.Text.Encoding.UTF8.GetBytes(s);
-                // Strings seen once (e.g. free-text flags) are not worth keeping.
-                if (_utf8.Count < 4096) _utf8[s] = b;
+                if (_utf8.Count >= MaxCachedTexts) return false;
+                int n = System.Text.Encoding.UTF8.GetByteCount(s);
+                // At least one byte: a null pointer would bind NULL instead of an empty text.
+                byte* p = (byte*)NativeMemory.Alloc((nuint)Math.Max(n, 1));
+                System.Text.Encoding.UTF8.GetBytes(s, new Span<byte>(p, n));
+                t = new NativeText((nint)p, n);
+                _utf8[s] = t;
             }
-            if (_utf8ByInstance.Count < 4096) _utf8ByInstance[s] = b;
-            return b;
+            if (_utf8ByInstance.Count < MaxCachedTexts) _utf8ByInstance[s] = t;
+            return true;
         }
 
         public override void Add(in ObservationToStore r)
         {
             _pending[_inPending++] = r;
             if (_inPending < RowsPerStatement) return;
-            for (int i = 0; i < RowsPerStatement; i++) Bind(_many, i * 10, _pending[i]);
-            Step(_many.Stmt);
+            var many = _many!;
+            for (int i = 0; i < RowsPerStatement; i++) Bind(many, i * 10, _pending[i]);
+            Step(many.Stmt);
             _inPending = 0;
         }
 
+        // Every bind is checked (out of memory, a text over SQLite's length limit): a failed one would leave the
+        // previous row's value bound. SQLite records the failure as the connection's error.
         private void Bind(Prepared p, int first, in ObservationToStore r)
         {
-            var stmt = p.Stmt;
-            raw.sqlite3_bind_int64(stmt, first + 2, r.StarId);
-            raw.sqlite3_bind_int64(stmt, first + 3, r.Line);
-            raw.sqlite3_bind_double(stmt, first + 4, r.Time);
-            BindText(p, first + 5, r.Scale.ToCode());
-            BindText(p, first + 6, r.Band);
-            raw.sqlite3_bind_double(stmt, first + 7, r.Mag);
-            raw.sqlite3_bind_double(stmt, first + 8, r.MagErr);
-            BindText(p, first + 9, r.Observer);
-            if (r.Flag is not null) BindText(p, first + 10, r.Flag);
+            nint stmt = p.Stmt;
+            int rc = SqliteDirect.BindInt64(stmt, first + 2, r.StarId)
+                | SqliteDirect.BindInt64(stmt, first + 3, r.Line)
+                | SqliteDirect.BindDouble(stmt, first + 4, r.Time)
+                | BindText(p, first + 5, r.Scale.ToCode())
+                | BindText(p, first + 6, r.Band)
+                | SqliteDirect.BindDouble(stmt, first + 7, r.Mag)
+                | SqliteDirect.BindDouble(stmt, first + 8, r.MagErr)
+                | BindText(p, first + 9, r.Observer);
+            if (r.Flag is not null) rc |= BindText(p, first + 10, r.Flag);
             else if (!ReferenceEquals(p.Bound[first + 10], NullBound))
             {
-                raw.sqlite3_bind_null(stmt, first + 10);
+                rc |= SqliteDirect.BindNull(stmt, first + 10);
                 p.Bound[first + 10] = NullBound;
             }
+            if (rc != raw.SQLITE_OK) Check(_db, raw.sqlite3_errcode(_db));
         }
 
-        private void BindText(Prepared p, int index, string text)
+        private int BindText(Prepared p, int index, string text)
         {
-            if (ReferenceEquals(p.Bound[index], text)) return;
-            // Copied by SQLite (transient), so the binding stays valid after the bytes' array is reused.
-            raw.sqlite3_bind_text(p.Stmt, index, Bytes(text));
+            if (ReferenceEquals(p.Bound[index], text)) return raw.SQLITE_OK;
+            int rc;
+            // Cached bytes live until the statements are finalized: bound without a copy.
+            if (TryCached(text, out var t)) rc = SqliteDirect.BindText(p.Stmt, index, (byte*)t.Bytes, t.Length, SqliteDirect.Static);
+            else
+            {
+                int n = System.Text.Encoding.UTF8.GetByteCount(text);
+                if (_scratch.Length < Math.Max(n, 1)) _scratch = new byte[Math.Max(n, 2 * _scratch.Length)];
+                System.Text.Encoding.UTF8.GetBytes(text, _scratch);
+                // Copied by SQLite (transient): the scratch buffer is reused for the next text.
+                fixed (byte* b = _scratch) rc = SqliteDirect.BindText(p.Stmt, index, b, n, SqliteDirect.Transient);
+            }
             p.Bound[index] = text;
+            return rc;
         }
 
-        private void Step(sqlite3_stmt stmt)
+        private void Step(nint stmt)
         {
-            int rc = raw.sqlite3_step(stmt);
-            raw.sqlite3_reset(stmt);
+            int rc = SqliteDirect.Step(stmt);
+            SqliteDirect.Reset(stmt);
             if (rc != raw.SQLITE_DONE) Check(_db, rc);
         }
 
         // The rows still buffered, in order, through the one-row statement (ids keep the file order).
         public override void Complete()
         {
+            var one = _one!;
             for (int i = 0; i < _inPending; i++)
             {
-                Bind(_one, 0, _pending[i]);
-                Step(_one.Stmt);
+                Bind(one, 0, _pending[i]);
+                Step(one.Stmt);
             }
             _inPending = 0;
         }
@@ -221,8 +264,17 @@ public static class ObservationStore
         {
             if (_disposed) return;
             _disposed = true;
-            _one.Stmt.Dispose();
-            _many.Stmt.Dispose();
+            // Statements first: they may still point at the cached texts.
+            if (_one is not null) SqliteDirect.Finalize(_one.Stmt);
+            if (_many is not null) SqliteDirect.Finalize(_many.Stmt);
+            foreach (var t in _utf8.Values) NativeMemory.Free((void*)t.Bytes);
+            _utf8.Clear();
+            _utf8ByInstance.Clear();
+            if (_dbRef)
+            {
+                _db.DangerousRelease();
+                _dbRef = false;
+            }
             Exec(_db, "PRAGMA cache_size=" + _cacheBefore.ToString(System.Globalization.CultureInfo.InvariantCulture));
         }
     }
@@ -253,15 +305,22 @@ public static class ObservationStore
         return indexes.Select(i => i.Sql).ToList();
     }
 
+    /// <summary>Largest table (rows) whose index rebuild sorts in the bulk insert's 64 MB instead of 16 MB.</summary>
+    internal const long MaxRowsForLargeSort = 2_000_000;
+
     /// <summary>Builds again, in <paramref name="tx"/>, the indexes <see cref="DeferIndexes"/> dropped.</summary>
     public static void RestoreIndexes(DbConnection c, DbTransaction tx, IReadOnlyList<string> definitions)
     {
         if (definitions.Count == 0) return;
         // CREATE INDEX sorts in memory up to the cache size and merges sorted runs from temporary files past it.
-        // 16 MB: the bulk insert's 64 MB of cached pages are released first (a 1 GB upload peaked ~50 MB higher with
-        // the sort at 64 MB, no faster: docs/PERFORMANCE.md), while the default 2 MB made many small runs.
+        // Tables up to 2M rows (largest id) sort in the bulk insert's 64 MB: fewer runs written to temporary files and
+        // merged, ~40% less rebuild time at 1M rows and ~20% at 2M (docs/PERFORMANCE.md, "Ingest (session 5)"), for
+        // ~50 MB more memory during the rebuild. Larger tables sort in 16 MB: the bulk insert's 64 MB of cached pages
+        // are released first (a 1 GB upload peaked ~50 MB higher with the sort at 64 MB, no faster), while the
+        // default 2 MB made many small runs.
+        long rows = c.ExecuteScalar<long>("SELECT COALESCE(MAX(id), 0) FROM observations", transaction: tx);
         long before = c.ExecuteScalar<long>("PRAGMA cache_size", transaction: tx);
-        c.Execute("PRAGMA cache_size=-16384", transaction: tx);
+        c.Execute(rows <= MaxRowsForLargeSort ? "PRAGMA cache_size=-65536" : "PRAGMA cache_size=-16384", transaction: tx);
         try
         {
             foreach (var sql in definitions) c.Execute(sql, transaction: tx);

@@ -20,14 +20,7 @@ public static class StarStore
     {
         string? cls = star.DeclaredClass?.ToCode();
         var existing = c.QuerySingleOrDefault<StarRow>($"SELECT {Columns} FROM stars s JOIN fields f ON f.id = s.field_id WHERE s.name = @Name", new { star.Name }, tx);
-        if (existing is null)
-        {
-            long id = c.ExecuteScalar<long>("""
-                INSERT INTO stars (name, field_id, ra_deg, dec_deg, declared_class, ebv, ebv_err, feh, created_at)
-                VALUES (@name, @fieldId, @ra, @dec, @cls, @ebv, @ebvErr, @feh, @now) RETURNING id
-                """, new { name = star.Name, fieldId, ra = star.Position.RaDeg, dec = star.Position.DecDeg, cls, ebv = star.Ebv, ebvErr = star.EbvErr, feh = star.FeH, now }, tx);
-            return (id, true);
-        }
+        if (existing is null) return (Insert(c, tx, star, fieldId, now), true);
         bool changed = existing.FieldId != fieldId || existing.RaDeg != star.Position.RaDeg || existing.DecDeg != star.Position.DecDeg
             || existing.DeclaredClass != cls || existing.Ebv != star.Ebv || existing.EbvErr != star.EbvErr || existing.Feh != star.FeH;
         if (changed)
@@ -40,6 +33,13 @@ public static class StarStore
         }
         return (existing.Id, changed);
     }
+
+    /// <summary>Adds a star the caller knows is not stored yet (its name is unique); returns its id.</summary>
+    public static long Insert(DbConnection c, DbTransaction tx, StarInfo star, long fieldId, string now) =>
+        c.ExecuteScalar<long>("""
+            INSERT INTO stars (name, field_id, ra_deg, dec_deg, declared_class, ebv, ebv_err, feh, created_at)
+            VALUES (@name, @fieldId, @ra, @dec, @cls, @ebv, @ebvErr, @feh, @now) RETURNING id
+            """, new { name = star.Name, fieldId, ra = star.Position.RaDeg, dec = star.Position.DecDeg, cls = star.DeclaredClass?.ToCode(), ebv = star.Ebv, ebvErr = star.EbvErr, feh = star.FeH, now }, tx);
 
     public static Dictionary<string, long> IdsByName(DbConnection c, DbTransaction? tx = null) =>
         c.Query<(long Id, string Name)>("SELECT id, name FROM stars", transaction: tx).ToDictionary(r => r.Name, r => r.Id, StringComparer.Ordinal);

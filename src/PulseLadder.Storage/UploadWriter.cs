@@ -76,14 +76,26 @@ public static class UploadWriter
             else
             {
                 var known = StarStore.IdsByName(c, tx);
+                // Fields repeat across a list (one lookup each, not one per star), and a star not stored yet is
+                // inserted without first being looked up (three statements per star became one).
+                var fieldIds = new Dictionary<string, long>(StringComparer.Ordinal);
                 foreach (var s in starList.Stars)
                 {
-                    long fieldId = FieldStore.GetOrCreate(c, tx, s.Field, now);
-                    bool isNew = !known.ContainsKey(s.Name);
-                    var (id, didChange) = StarStore.Upsert(c, tx, s, fieldId, now);
-                    if (isNew) added++;
-                    else if (didChange) changed++;
-                    if (didChange) touched.Add(id);
+                    if (!fieldIds.TryGetValue(s.Field, out long fieldId)) fieldIds.Add(s.Field, fieldId = FieldStore.GetOrCreate(c, tx, s.Field, now));
+                    if (!known.ContainsKey(s.Name))
+                    {
+                        long id = StarStore.Insert(c, tx, s, fieldId, now);
+                        known.Add(s.Name, id);
+                        added++;
+                        touched.Add(id);
+                        continue;
+                    }
+                    var (existingId, didChange) = StarStore.Upsert(c, tx, s, fieldId, now);
+                    if (didChange)
+                    {
+                        changed++;
+                        touched.Add(existingId);
+                    }
                 }
                 UploadStore.Insert(c, tx, new UploadRow
                 {
@@ -132,7 +144,7 @@ public static class UploadWriter
                     inserter.Add(new ObservationToStore(lastId, checked((int)r.Line), o.Time, o.Scale, o.Band, o.Mag, o.MagErr, o.Observer, o.Flag));
                     stored++;
                 }
-                if (f.StreamRows is { } stream) stream(batchRows => { foreach (ref readonly var r in batchRows) Add(r); });
+                if (f.StreamRows is { } stream) StoreWhileParsing(stream, batchRows => { foreach (ref readonly var r in batchRows) Add(r); });
                 else foreach (var r in f.Rows) Add(r);
                 inserter.Complete();
             }
@@ -154,6 +166,57 @@ public static class UploadWriter
         var pending = StarStore.Pending(c, Core.Pipeline.PipelineVersion.Current).ToDictionary(p => p.StarId, p => p.Revision);
         var toAnalyse = touched.Where(pending.ContainsKey).Select(id => (id, pending[id])).ToList();
         return new UploadOutcome(batch, added, changed, observations, duplicates, toAnalyse);
+    }
+
+    /// <summary>Parsed batches waiting for the store: enough to keep both threads busy, a few MB at most.</summary>
+    private const int BatchesInFlight = 3;
+
+    /// <summary>
+    /// A streamed file's rows are parsed on a helper thread while this thread (the connection's) stores the batch
+    /// before: on two cores the second reading of a large upload then costs little wall time. Batches are copied out
+    /// of the parser's reused buffer and handed over in order through a bounded queue, so memory stays bounded and ids
+    /// keep the file order. A failure on either side stops both; the parser's exception is rethrown here as it was
+    /// thrown, and the caller's transaction is never committed.
+    /// </summary>
+    private static void StoreWhileParsing(Action<Core.Ingest.RowBatchHandler<Core.Ingest.PhotometryRow>> stream,
+        Core.Ingest.RowBatchHandler<Core.Ingest.PhotometryRow> store)
+    {
+        using var parsed = new System.Collections.Concurrent.BlockingCollection<(Core.Ingest.PhotometryRow[] Rows, int Count)>(BatchesInFlight);
+        var free = new System.Collections.Concurrent.ConcurrentQueue<Core.Ingest.PhotometryRow[]>();
+        using var stop = new CancellationTokenSource();
+        System.Runtime.ExceptionServices.ExceptionDispatchInfo? failure = null;
+        var parser = new Thread(() =>
+        {
+            try
+            {
+                stream(batch =>
+                {
+                    if (!free.TryDequeue(out var rows) || rows.Length < batch.Length) rows = new Core.Ingest.PhotometryRow[batch.Length];
+                    batch.CopyTo(rows);
+                    parsed.Add((rows, batch.Length), stop.Token);
+                });
+            }
+            catch (OperationCanceledException) when (stop.IsCancellationRequested) { }
+            catch (Exception e) { failure = System.Runtime.ExceptionServices.ExceptionDispatchInfo.Capture(e); }
+            finally { parsed.CompleteAdding(); }
+        }) { IsBackground = true, Name = "upload parser" };
+        parser.Start();
+        try
+        {
+            foreach (var (rows, count) in parsed.GetConsumingEnumerable())
+            {
+                store(rows.AsSpan(0, count));
+                free.Enqueue(rows);
+            }
+        }
+        finally
+        {
+            // On a store failure the parser is stopped at its next batch; either way it has ended (and no longer
+            // reads the spooled file) before this returns.
+            stop.Cancel();
+            parser.Join();
+        }
+        failure?.Throw();
     }
 
     /// <summary>

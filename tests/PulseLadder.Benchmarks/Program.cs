@@ -7,6 +7,7 @@ if (args.Length > 0 && args[0] == "fft-timing") return FftTiming.Run(args[1..]);
 if (args.Length > 0 && args[0] == "nufft-accuracy") return NufftAccuracy.Run(args[1..]);
 if (args.Length > 0 && args[0] == "throughput") return Throughput.Run(args[1..]);
 if (args.Length > 0 && args[0] == "scaleout-ingest") return ScaleOutIngest.Run(args[1..]);
+if (args.Length > 0 && args[0] == "sqlite-insert") return SqliteInsertTiming.Run(args[1..]);
 BenchmarkDotNet.Running.BenchmarkSwitcher.FromAssembly(typeof(Program).Assembly).Run(args);
 return 0;
 

@@ -257,21 +257,32 @@ public sealed class BenchThroughputCommand : Command<BenchThroughputCommand.Sett
         db.Migrate(TimeProvider.System);
         var cpu = new BenchPipelineCommand.CpuClock();
         cpu.Restart();
+        var gc = GcCounts.Now();
         var sw = Stopwatch.StartNew();
         var outcome = UploadWriter.Store(db, new StarListFile("stars.csv", new string('0', 64), stars),
             [new PhotometryFile("phot.csv", new string('1', 64), TimeScale.JdUtc, 0, list)], "bench", TimeProvider.System);
         double sec = sw.Elapsed.TotalSeconds, cpuSec = cpu.ElapsedMs / 1000;
-        Console.WriteLine(F($"ingest {kind}: {outcome.ObservationsAdded} observations stored (UploadWriter.Store, one transaction) in {sec:F2} s = {outcome.ObservationsAdded / sec:F0} obs/s wall, {outcome.ObservationsAdded / cpuSec:F0} obs/s per CPU second of this thread; load {LoadAverage()}"));
+        Console.WriteLine(F($"ingest {kind}: {outcome.ObservationsAdded} observations stored (UploadWriter.Store, one transaction) in {sec:F2} s = {outcome.ObservationsAdded / sec:F0} obs/s wall, {outcome.ObservationsAdded / cpuSec:F0} obs/s per CPU second of this thread; {GcCounts.Now().Since(gc)}; load {LoadAverage()}"));
         // A later upload a tenth that size into the filled table: under ObservationStore.DeferIndexes's quarter, so on
         // SQLite the indexes are kept and updated row by row (the first load, into an empty table, rebuilds them once).
         var more = list.Take(rows / 10).Select(r => r with { Observation = r.Observation with { Time = r.Observation.Time + 1000 } }).ToList();
         cpu.Restart();
+        gc = GcCounts.Now();
         sw.Restart();
         var second = UploadWriter.Store(db, null, [new PhotometryFile("phot2.csv", new string('2', 64), TimeScale.JdUtc, 0, more)], "bench", TimeProvider.System);
         sec = sw.Elapsed.TotalSeconds;
         cpuSec = cpu.ElapsedMs / 1000;
-        Console.WriteLine(F($"ingest {kind}, second upload into the filled table: {second.ObservationsAdded} observations in {sec:F2} s = {second.ObservationsAdded / sec:F0} obs/s wall, {second.ObservationsAdded / cpuSec:F0} obs/s per CPU second of this thread; load {LoadAverage()}"));
+        Console.WriteLine(F($"ingest {kind}, second upload into the filled table: {second.ObservationsAdded} observations in {sec:F2} s = {second.ObservationsAdded / sec:F0} obs/s wall, {second.ObservationsAdded / cpuSec:F0} obs/s per CPU second of this thread; {GcCounts.Now().Since(gc)}; load {LoadAverage()}"));
         if (kind == "postgres") DropDatabase(admin!, cs["postgres:".Length..]);
+    }
+
+    /// <summary>Collections and GC pause time so far, to show what the GC cost during one measured store.</summary>
+    private readonly record struct GcCounts(int Gen0, int Gen2, TimeSpan Pause)
+    {
+        public static GcCounts Now() => new(GC.CollectionCount(0), GC.CollectionCount(2), GC.GetTotalPauseDuration());
+
+        public string Since(GcCounts before) =>
+            F($"GC during the store: gen0 {Gen0 - before.Gen0}, gen2 {Gen2 - before.Gen2}, pause {(Pause - before.Pause).TotalSeconds:F3} s");
     }
 
     private static string CreateDatabase(string admin, string prefix)
