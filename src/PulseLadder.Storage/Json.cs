@@ -30,7 +30,7 @@ public static class Json
 
     public static T? Deserialize<T>(string json) => JsonSerializer.Deserialize<T>(json, Options);
 
-    private static readonly JsonSerializerOptions WithoutCurvesOptions = CreateWithoutCurves();
+    internal static readonly JsonSerializerOptions WithoutCurvesOptions = CreateWithoutCurves();
 
     private static JsonSerializerOptions CreateWithoutCurves()
     {
@@ -43,7 +43,79 @@ public static class Json
     /// As <see cref="Deserialize{T}"/> with every plotted <see cref="Curve"/> skipped (read back empty): for passes
     /// over many stored results that never look at the periodogram or window, which are most of a result's text.
     /// </summary>
-    public static T? DeserializeWithoutCurves<T>(string json) => JsonSerializer.Deserialize<T>(json, WithoutCurvesOptions);
+    public static T? DeserializeWithoutCurves<T>(string json)
+    {
+        // The curves are blanked in the UTF-8 text first (a byte scan), so the parser never tokenises their thousands
+        // of numbers only to skip them; a curve the scan does not recognise is left for the converter to skip.
+        byte[] utf8 = System.Buffers.ArrayPool<byte>.Shared.Rent(Encoding.UTF8.GetMaxByteCount(json.Length));
+        try
+        {
+            int n = Encoding.UTF8.GetBytes(json, utf8);
+            n = BlankCurves(utf8.AsSpan(0, n));
+            return JsonSerializer.Deserialize<T>(utf8.AsSpan(0, n), WithoutCurvesOptions);
+        }
+        finally { System.Buffers.ArrayPool<byte>.Shared.Return(utf8); }
+    }
+
+    private static ReadOnlySpan<byte> CurveStart => "{\"x\":["u8;
+    private static ReadOnlySpan<byte> CurveMiddle => "],\"y\":["u8;
+    private static ReadOnlySpan<byte> EmptyCurve => "{\"x\":[],\"y\":[]}"u8;
+
+    /// <summary>
+    /// Replaces, in place, every <c>{"x":[numbers],"y":[numbers]}</c> (the form <see cref="CurveJsonConverter"/> writes;
+    /// <see cref="Curve"/> is the only stored type whose first property is x) by the empty curve, and returns the new
+    /// length. The pattern cannot start inside a JSON string (its quotes would be escaped there), and an occurrence is
+    /// only blanked when both arrays hold nothing but number characters, so anything else is left untouched.
+    /// </summary>
+    internal static int BlankCurves(Span<byte> json)
+    {
+        int read = 0, write = 0;
+        while (true)
+        {
+            int at = json[read..].IndexOf(CurveStart);
+            if (at < 0) break;
+            at += read;
+            int end = MatchCurve(json, at);
+            if (end < 0)
+            {
+                // Not a plain curve: copy through the pattern's first byte and look again after it.
+                json.Slice(read, at + 1 - read).CopyTo(json[write..]);
+                write += at + 1 - read;
+                read = at + 1;
+                continue;
+            }
+            json.Slice(read, at - read).CopyTo(json[write..]);
+            write += at - read;
+            EmptyCurve.CopyTo(json[write..]);
+            write += EmptyCurve.Length;
+            read = end;
+        }
+        json[read..].CopyTo(json[write..]);
+        return write + json.Length - read;
+    }
+
+    /// <summary>End (exclusive) of the plain curve starting at <paramref name="at"/>, or -1.</summary>
+    private static int MatchCurve(ReadOnlySpan<byte> json, int at)
+    {
+        int i = at + CurveStart.Length;
+        int close = NumbersUntil(json, i);
+        if (close < 0 || !json[close..].StartsWith(CurveMiddle)) return -1;
+        i = close + CurveMiddle.Length;
+        close = NumbersUntil(json, i);
+        if (close < 0 || close + 1 >= json.Length || json[close + 1] != (byte)'}') return -1;
+        return close + 2;
+    }
+
+    private static readonly System.Buffers.SearchValues<byte> NumberText =
+        System.Buffers.SearchValues.Create("0123456789+-.eE,"u8);
+
+    /// <summary>Index of the ']' ending a run of number characters from <paramref name="i"/>, or -1.</summary>
+    private static int NumbersUntil(ReadOnlySpan<byte> json, int i)
+    {
+        int k = json[i..].IndexOfAnyExcept(NumberText);
+        if (k < 0) return -1;
+        return json[i + k] == (byte)']' ? i + k : -1;
+    }
 
     /// <summary>
     /// <paramref name="json"/> (a JSON object) with the value of its top-level property <paramref name="property"/>

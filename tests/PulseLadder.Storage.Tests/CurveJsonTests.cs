@@ -113,6 +113,33 @@ public sealed class ResultSplicingTests
         Assert.Equal(14.2, light.Mu);
     }
 
+    // The byte-scan shortcut against the converter path it stands for (System.Text.Json skipping each curve token by
+    // token): the same object, on curves that are plain, special (NaN is written as a string), null, empty, and text
+    // that merely looks like a curve inside a string.
+    [Fact]
+    public void DeserializeWithoutCurves_ScanShortcut_ReadsWhatTheConverterPathReads()
+    {
+        var samples = new List<Outer>
+        {
+            Sample(14.2),
+            new("S-2", new Inner("{\"x\":[1,2],\"y\":[3]}", new Curve([double.NaN, 1], [2, double.PositiveInfinity]), 0.1), ["{\"x\":["], 1),
+            new("S-3", new Inner("gls", new Curve([], []), 0.2), [], 2),
+            new("S-4", new Inner("gls", new Curve(null!, [1.5e-300, -2.5E+10]), 0.3), ["x"], 3),
+            new("S-5", null, [], 4),
+        };
+        foreach (var o in samples)
+        {
+            string json = Json.Serialize(o);
+            var reference = JsonSerializer.Deserialize<Outer>(json, Json.WithoutCurvesOptions)!;
+            var fast = Json.DeserializeWithoutCurves<Outer>(json)!;
+            Assert.Equal(Json.Serialize(reference), Json.Serialize(fast));
+        }
+        // The scan itself: plain curves become empty, the rest is byte for byte.
+        byte[] text = System.Text.Encoding.UTF8.GetBytes("""{"a":{"x":[1,2.5,-3e-5],"y":[0,1,2]},"b":"{\"x\":[1],\"y\":[2]}","c":{"x":["NaN"],"y":[1]},"d":{"x":[],"y":[7]}}""");
+        int n = Json.BlankCurves(text);
+        Assert.Equal("""{"a":{"x":[],"y":[]},"b":"{\"x\":[1],\"y\":[2]}","c":{"x":["NaN"],"y":[1]},"d":{"x":[],"y":[]}}""", System.Text.Encoding.UTF8.GetString(text, 0, n));
+    }
+
     [Fact]
     public void WithPropertyFrom_PutsBackTheStoredValue_ByteForByte()
     {
