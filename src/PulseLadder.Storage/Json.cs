@@ -137,7 +137,101 @@ public static class Json
     }
 
     /// <summary>Byte range [start, end) of the value of a top-level property, or null.</summary>
-    private static (int Start, int End)? FindTopLevel(ReadOnlySpan<byte> utf8, ReadOnlySpan<byte> name)
+    /// <summary>
+    /// Byte range of the value of top-level property <paramref name="name"/>, or null. A structural scan (strings with
+    /// their escapes, nesting of objects and arrays) that jumps over numbers with a vectorised search, where a JSON
+    /// reader tokenises every number of the curves it skips. For text this program wrote (valid, compact or not);
+    /// <see cref="FindTopLevelByReader"/> is the reference it is tested against.
+    /// </summary>
+    internal static (int Start, int End)? FindTopLevel(ReadOnlySpan<byte> utf8, ReadOnlySpan<byte> name)
+    {
+        int i = SkipSpace(utf8, 0);
+        if (i >= utf8.Length || utf8[i] != (byte)'{') return null;
+        i = SkipSpace(utf8, i + 1);
+        while (i < utf8.Length && utf8[i] == (byte)'"')
+        {
+            int keyEnd = EndOfString(utf8, i);
+            if (keyEnd < 0) return null;
+            var key = utf8[(i + 1)..keyEnd];
+            i = SkipSpace(utf8, keyEnd + 1);
+            if (i >= utf8.Length || utf8[i] != (byte)':') return null;
+            int start = SkipSpace(utf8, i + 1);
+            int end = EndOfValue(utf8, start);
+            if (end < 0) return null;
+            // Keys are compared as written: this program's keys are snake_case ASCII, never escaped.
+            if (key.SequenceEqual(name)) return (start, end);
+            i = SkipSpace(utf8, end);
+            if (i >= utf8.Length || utf8[i] != (byte)',') return null;
+            i = SkipSpace(utf8, i + 1);
+        }
+        return null;
+    }
+
+    private static readonly System.Buffers.SearchValues<byte> Structural = System.Buffers.SearchValues.Create("\"{}[]"u8);
+    private static readonly System.Buffers.SearchValues<byte> InString = System.Buffers.SearchValues.Create("\"\\"u8);
+    private static readonly System.Buffers.SearchValues<byte> ScalarEnd = System.Buffers.SearchValues.Create(",}] \t\r\n"u8);
+    private static readonly System.Buffers.SearchValues<byte> Space = System.Buffers.SearchValues.Create(" \t\r\n"u8);
+
+    private static int SkipSpace(ReadOnlySpan<byte> s, int i)
+    {
+        if (i >= s.Length) return s.Length;
+        int k = s[i..].IndexOfAnyExcept(Space);
+        return k < 0 ? s.Length : i + k;
+    }
+
+    /// <summary>Index of the closing quote of the string opening at <paramref name="open"/>, or -1.</summary>
+    private static int EndOfString(ReadOnlySpan<byte> s, int open)
+    {
+        int j = open + 1;
+        while (j < s.Length)
+        {
+            int k = s[j..].IndexOfAny(InString);
+            if (k < 0) return -1;
+            j += k;
+            if (s[j] == (byte)'"') return j;
+            j += 2; // an escape: the backslash and the byte it escapes
+        }
+        return -1;
+    }
+
+    /// <summary>End (exclusive) of the value starting at <paramref name="i"/>, or -1.</summary>
+    private static int EndOfValue(ReadOnlySpan<byte> s, int i)
+    {
+        if (i >= s.Length) return -1;
+        byte c = s[i];
+        if (c == (byte)'"') { int e = EndOfString(s, i); return e < 0 ? -1 : e + 1; }
+        if (c != (byte)'{' && c != (byte)'[')
+        {
+            int k = s[i..].IndexOfAny(ScalarEnd);
+            return k < 0 ? s.Length : i + k;
+        }
+        int depth = 0, j = i;
+        while (j < s.Length)
+        {
+            int k = s[j..].IndexOfAny(Structural);
+            if (k < 0) return -1;
+            j += k;
+            switch (s[j])
+            {
+                case (byte)'"':
+                    int e = EndOfString(s, j);
+                    if (e < 0) return -1;
+                    j = e + 1;
+                    continue;
+                case (byte)'{' or (byte)'[':
+                    depth++;
+                    break;
+                default:
+                    if (--depth == 0) return j + 1;
+                    break;
+            }
+            j++;
+        }
+        return -1;
+    }
+
+    /// <summary>The same search with System.Text.Json's reader (the reference for <see cref="FindTopLevel"/>).</summary>
+    internal static (int Start, int End)? FindTopLevelByReader(ReadOnlySpan<byte> utf8, ReadOnlySpan<byte> name)
     {
         var r = new Utf8JsonReader(utf8);
         if (!r.Read() || r.TokenType != JsonTokenType.StartObject) return null;

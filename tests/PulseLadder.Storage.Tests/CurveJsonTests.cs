@@ -153,6 +153,58 @@ public sealed class ResultSplicingTests
         Assert.Equal(3, doc.RootElement.GetProperty("search").GetProperty("periodogram").GetProperty("x").GetArrayLength());
     }
 
+    // The structural scan against System.Text.Json's reader (Json.FindTopLevelByReader) on random documents: nested
+    // objects and arrays, strings holding quotes, backslashes, braces and non-ASCII text, numbers, literals.
+    [Fact]
+    public void FindTopLevel_Scan_FindsWhatTheReaderFinds()
+    {
+        var rng = new Random(5);
+        string[] texts = ["plain", "q\"uote", "back\\slash\\", "{\"x\":[1]}", "]}", "Åsa 천문대", "", "\\\""];
+        void Value(System.Text.Json.Utf8JsonWriter w, int depth)
+        {
+            switch (depth > 3 ? rng.Next(4) : rng.Next(7))
+            {
+                case 0: w.WriteNumberValue(rng.NextDouble() * 1e6 - 5e5); break;
+                case 1: w.WriteStringValue(texts[rng.Next(texts.Length)]); break;
+                case 2: w.WriteBooleanValue(rng.Next(2) == 0); break;
+                case 3: w.WriteNullValue(); break;
+                case 4 or 5:
+                    w.WriteStartArray();
+                    for (int i = rng.Next(6); i > 0; i--) Value(w, depth + 1);
+                    w.WriteEndArray();
+                    break;
+                default:
+                    w.WriteStartObject();
+                    for (int i = rng.Next(5); i > 0; i--) { w.WritePropertyName(texts[rng.Next(texts.Length)] + i); Value(w, depth + 1); }
+                    w.WriteEndObject();
+                    break;
+            }
+        }
+        for (int doc = 0; doc < 300; doc++)
+        {
+            var buf = new System.Buffers.ArrayBufferWriter<byte>();
+            var keys = new List<string>();
+            using (var w = new System.Text.Json.Utf8JsonWriter(buf, new System.Text.Json.JsonWriterOptions { Indented = doc % 3 == 0 }))
+            {
+                w.WriteStartObject();
+                for (int k = rng.Next(8); k >= 0; k--)
+                {
+                    string key = "key_" + k;
+                    keys.Add(key);
+                    w.WritePropertyName(key);
+                    Value(w, 0);
+                }
+                w.WriteEndObject();
+            }
+            var bytes = buf.WrittenSpan;
+            foreach (var key in keys.Append("missing"))
+            {
+                var name = System.Text.Encoding.UTF8.GetBytes(key);
+                Assert.Equal(Json.FindTopLevelByReader(bytes, name), Json.FindTopLevel(bytes, name));
+            }
+        }
+    }
+
     [Fact]
     public void WithPropertyFrom_MissingProperty_Throws()
     {
