@@ -157,6 +157,26 @@ public sealed class StorageSuiteTests
     }
 
     [Fact]
+    public async Task LargeSqliteLoad_IsReadableAtOnceAndFullyCheckpointable_AndTheConnectionsSettingsComeBack()
+    {
+        // SQLite's documented PRAGMA wal_checkpoint result row: (busy, frames in the log, frames checkpointed).
+        var db = Fresh("sqlite");
+        var big = Interleaved("sha-ckpt", ["S1", "S2", "S3"], (int)UploadWriter.MinRowsForBackgroundCheckpoint + 5);
+        var outcome = UploadWriter.Store(db, Stars("S1", "S2", "S3"), [big], "tester", Clock);
+        // Committed and readable before the checkpoint has necessarily run.
+        using (var c0 = db.Open()) Assert.Equal(big.Rows.Count, ObservationStore.Count(c0));
+        await UploadWriter.LastBackgroundCheckpoint.WaitAsync(TimeSpan.FromSeconds(60));
+        using var c = db.Open();
+        var (busy, log, done) = c.QuerySingle<(long, long, long)>("PRAGMA wal_checkpoint(PASSIVE)");
+        Assert.Equal(0, busy);
+        Assert.Equal(log, done);
+        // The pooled connection the upload used is back to SQLite's defaults for everyone else.
+        Assert.Equal(1000, c.ExecuteScalar<long>("PRAGMA wal_autocheckpoint"));
+        Assert.Equal(1, c.ExecuteScalar<long>("PRAGMA foreign_keys"));
+        Assert.Equal(big.Rows.Count, outcome.ObservationsAdded);
+    }
+
+    [Fact]
     public void ForStar_NativeSqlitePath_ReadsWhatTheAdoNetReaderReads()
     {
         // Reference: the same query through Microsoft.Data.Sqlite's data reader (ObservationStore.ForStarPortable).
