@@ -10,20 +10,6 @@ namespace PulseLadder.ScaleOut.Tests;
 /// <summary>At-least-once delivery: the same (star, revision) job arriving again must neither add a row nor redo the work.</summary>
 public sealed class AnalyzeStarJobTests
 {
-    private sealed class SteppingClock : TimeProvider
-    {
-        private DateTimeOffset _now = new(2026, 1, 1, 0, 0, 0, TimeSpan.Zero);
-
-        public override DateTimeOffset GetUtcNow() => _now = _now.AddMinutes(1);
-    }
-
-    private sealed class NoQueue : IAnalysisQueue
-    {
-        public void EnqueueStar(long starId, long revision) { }
-
-        public void EnqueueFieldSummary(long fieldId) { }
-    }
-
     [Fact]
     public void Run_KeepsTheStoredResult_WhenTheSameJobIsDeliveredAgain()
     {

@@ -17,20 +17,6 @@ namespace PulseLadder.ScaleOut.Tests;
 /// </summary>
 public sealed class FieldPassRequestTests
 {
-    private sealed class SteppingClock : TimeProvider
-    {
-        private DateTimeOffset _now = new(2026, 1, 1, 0, 0, 0, TimeSpan.Zero);
-
-        public override DateTimeOffset GetUtcNow() => _now = _now.AddMinutes(1);
-    }
-
-    private sealed class NoQueue : IAnalysisQueue
-    {
-        public void EnqueueStar(long starId, long revision) { }
-
-        public void EnqueueFieldSummary(long fieldId) { }
-    }
-
     private sealed class ListLogger<T> : ILogger<T>
     {
         public List<string> Messages { get; } = [];
