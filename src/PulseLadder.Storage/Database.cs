@@ -59,8 +59,8 @@ public sealed class Database
         throw new ArgumentException($"Database setting must start with 'sqlite:' or 'postgres:', got '{setting}'.");
     }
 
-    /// <summary>Largest part of an SQLite database file a connection reads through a memory map.</summary>
-    internal const long SqliteMmapBytes = 1L << 30;
+    /// <summary>Every SQLite connection reads up to 1 GB of the database file through a memory map (see Open).</summary>
+    internal const string SqliteMmapPragma = "PRAGMA mmap_size=1073741824;";
 
     public DbConnection Open()
     {
@@ -77,8 +77,7 @@ public sealed class Database
             // connection's page cache is dropped whenever another connection has committed (the analysis threads
             // commit every few ms), so a star's observations (hundreds of rows spread over as many pages) were read
             // from the OS with one system call and a 4 KB copy each. UploadWriter turns it off for bulk loads.
-            cmd.CommandText = "PRAGMA journal_mode=WAL; PRAGMA foreign_keys=ON; PRAGMA synchronous=NORMAL; PRAGMA busy_timeout=60000; PRAGMA mmap_size="
-                + SqliteMmapBytes.ToString(System.Globalization.CultureInfo.InvariantCulture) + ";";
+            cmd.CommandText = "PRAGMA journal_mode=WAL; PRAGMA foreign_keys=ON; PRAGMA synchronous=NORMAL; PRAGMA busy_timeout=60000; " + SqliteMmapPragma;
             cmd.ExecuteNonQuery();
             return c;
         }

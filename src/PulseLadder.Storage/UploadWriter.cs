@@ -44,14 +44,16 @@ public static class UploadWriter
     {
         using var c = db.Open();
         bool sqlite = c is SqliteConnection;
-        // A no-op inside a transaction, so set before it begins; restored for the pooled connection. The memory map
-        // is off too: a bulk load (and the index rebuild after it) reads the whole table once, and through the map
-        // every page read would stay in this process's resident set.
-        // A large load also leaves the copy of its pages from the write-ahead log into the database file (the
-        // checkpoint SQLite runs in the committing call, a quarter of a 1M-row store) to a background connection
-        // right after the commit: the upload's answer (and the star jobs it queues) need not wait for it, and
-        // readers find the committed pages in the log meanwhile. Durability is the log's either way.
+        // Connection settings for the load, set before its transaction begins (foreign_keys is a no-op inside one) and
+        // restored for the pooled connection:
+        // - no memory map: a bulk load (and the index rebuild after it) reads the whole table once, and through the
+        //   map every page read would stay in this process's resident set;
+        // - for a large load, no automatic checkpoint in the committing call (the copy of its pages from the
+        //   write-ahead log into the database file, a quarter of a 1M-row store): a background connection does it
+        //   right after the commit, so the upload's answer and the star jobs it queues need not wait; readers find the
+        //   committed pages in the log meanwhile, and durability is the log's either way.
         bool deferCheckpoint = sqlite && photometry.Sum(f => f.Count) >= MinRowsForBackgroundCheckpoint;
+        long autoCheckpoint = deferCheckpoint ? c.ExecuteScalar<long>("PRAGMA wal_autocheckpoint") : 0;
         if (sqlite) c.Execute("PRAGMA foreign_keys=OFF; PRAGMA mmap_size=0;" + (deferCheckpoint ? " PRAGMA wal_autocheckpoint=0;" : ""));
         try
         {
@@ -62,16 +64,13 @@ public static class UploadWriter
         finally
         {
             if (sqlite && c.State == System.Data.ConnectionState.Open)
-                c.Execute("PRAGMA foreign_keys=ON; PRAGMA mmap_size=" + Database.SqliteMmapBytes.ToString(System.Globalization.CultureInfo.InvariantCulture)
-                    + (deferCheckpoint ? "; PRAGMA wal_autocheckpoint=" + SqliteAutoCheckpointPages.ToString(System.Globalization.CultureInfo.InvariantCulture) : "") + ";");
+                c.Execute("PRAGMA foreign_keys=ON; " + Database.SqliteMmapPragma
+                    + (deferCheckpoint ? " PRAGMA wal_autocheckpoint=" + autoCheckpoint.ToString(System.Globalization.CultureInfo.InvariantCulture) + ";" : ""));
         }
     }
 
     /// <summary>Observations in one upload from which the WAL checkpoint runs after the commit, in the background.</summary>
     internal const long MinRowsForBackgroundCheckpoint = 50_000;
-
-    /// <summary>SQLite's default automatic checkpoint threshold (pages), restored on the pooled connection.</summary>
-    private const int SqliteAutoCheckpointPages = 1000;
 
     /// <summary>The last background checkpoint (tests and benchmarks wait for it).</summary>
     public static Task LastBackgroundCheckpoint { get; private set; } = Task.CompletedTask;
