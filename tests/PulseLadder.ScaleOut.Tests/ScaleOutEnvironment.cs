@@ -80,14 +80,15 @@ internal sealed class PulseLadderProcess : IDisposable
 
     public static string Dll => Path.Combine(AppContext.BaseDirectory, "pulseladder.dll");
 
-    public static PulseLadderProcess Start(string name, IEnumerable<string> args, IReadOnlyDictionary<string, string>? env = null)
+    public static PulseLadderProcess Start(string name, IEnumerable<string> args, IReadOnlyDictionary<string, string>? env = null,
+        string? workingDirectory = null)
     {
         var psi = new ProcessStartInfo("dotnet")
         {
             UseShellExecute = false,
             RedirectStandardOutput = true,
             RedirectStandardError = true,
-            WorkingDirectory = AppContext.BaseDirectory,
+            WorkingDirectory = workingDirectory ?? AppContext.BaseDirectory,
         };
         psi.ArgumentList.Add(Dll);
         foreach (var a in args) psi.ArgumentList.Add(a);
@@ -110,6 +111,8 @@ internal sealed class PulseLadderProcess : IDisposable
     public bool HasExited => _p.HasExited;
 
     public int Pid => _p.Id;
+
+    public int ExitCode => _p.ExitCode;
 
     public string Output
     {
