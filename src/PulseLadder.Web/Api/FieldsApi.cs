@@ -86,18 +86,22 @@ public static class FieldsApi
         if (errors.Count > 0) return TypedResults.ValidationProblem(errors);
         string now = clock.GetUtcNow().ToString("O");
         using var c = db.Open();
+        HashSet<long> fieldStars;
         using (var tx = c.BeginTransaction())
         {
             var f = FieldStore.Get(c, fieldId, tx);
             if (f is null) return NotFound($"No field with id {fieldId}.");
             FieldStore.SetSettings(c, tx, fieldId, body.CalibrationId, body.DefaultEbv);
             // New settings make every result of the field stale: each star gets a new revision.
-            StarStore.BumpRevision(c, tx, StarStore.ListByField(c, fieldId, tx).Select(s => s.Id));
+            fieldStars = StarStore.ListByField(c, fieldId, tx).Select(s => s.Id).ToHashSet();
+            StarStore.BumpRevision(c, tx, fieldStars);
             AuditStore.Append(c, tx, now, user.Identity!.Name!, "field:settings", $"field {f.Name}",
                 $"calibration {f.CalibrationId ?? "-"} -> {body.CalibrationId ?? "-"}; default_ebv {f.DefaultEbv?.ToString("R", System.Globalization.CultureInfo.InvariantCulture) ?? "-"} -> {body.DefaultEbv?.ToString("R", System.Globalization.CultureInfo.InvariantCulture) ?? "-"}");
             tx.Commit();
         }
-        foreach (var (starId, revision) in StarStore.Pending(c, PipelineVersion.Current)) queue.EnqueueStar(starId, revision);
+        // The field's stars in batches (PulseLadder:Jobs:BatchSize), as an upload queues them: a field of thousands of
+        // stars must not cost thousands of queue round trips. Other fields' pending stars are already queued.
+        queue.EnqueueStars(StarStore.Pending(c, PipelineVersion.Current).Where(p => fieldStars.Contains(p.StarId)).ToList());
         queue.EnqueueFieldSummary(fieldId);
         return TypedResults.Ok(List(db).Value!.Single(x => x.FieldId == fieldId));
     }
