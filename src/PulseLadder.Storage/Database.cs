@@ -138,7 +138,13 @@ public sealed class Database
     /// Applies every migration newer than the database's version, each in its own transaction, recording it in
     /// schema_version. Only the web host (the schema's owner) calls this; workers call <see cref="EnsureSchemaIsCurrent"/>.
     /// </summary>
-    public int Migrate(TimeProvider clock)
+    public int Migrate(TimeProvider clock) => Migrate(clock, int.MaxValue);
+
+    /// <summary>
+    /// As <see cref="Migrate(TimeProvider)"/>, but stops after <paramref name="upToVersion"/>: the schema an earlier
+    /// build left (the migration tests start from each earlier version).
+    /// </summary>
+    public int Migrate(TimeProvider clock, int upToVersion)
     {
         using var c = Open();
         if (Dialect == Dialect.Postgres)
@@ -150,7 +156,7 @@ public sealed class Database
         {
             c.Execute("CREATE TABLE IF NOT EXISTS schema_version (version INTEGER PRIMARY KEY, name TEXT NOT NULL, applied_at TEXT NOT NULL)");
             int current = SchemaVersion(c);
-            foreach (var (version, name, sql) in Migrations().Where(m => m.Version > current))
+            foreach (var (version, name, sql) in Migrations().Where(m => m.Version > current && m.Version <= upToVersion))
             {
                 using var tx = c.BeginTransaction();
                 c.Execute(sql, transaction: tx);
