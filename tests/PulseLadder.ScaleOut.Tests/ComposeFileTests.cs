@@ -165,17 +165,7 @@ public sealed class ComposeFileTests(ITestOutputHelper output)
             // Three job servers (web with its one worker thread, two worker processes) before the campaign arrives.
             await Until(() => Servers(db) >= 3, TimeSpan.FromSeconds(120), "three Hangfire servers", workers, all);
 
-            string campaign = Path.Combine(dir, "campaign");
-            using (var form = new MultipartFormDataContent())
-            {
-                form.Add(new StringContent("jd_utc"), "time_scale");
-                form.Add(new StringContent(DemoCampaign.TimeOffset.ToString(CultureInfo.InvariantCulture)), "time_offset");
-                form.Add(new ByteArrayContent(File.ReadAllBytes(Path.Combine(campaign, "stars.csv"))), "stars", "stars.csv");
-                foreach (var f in Directory.GetFiles(campaign, "photometry-*.csv").Order(StringComparer.Ordinal))
-                    form.Add(new ByteArrayContent(File.ReadAllBytes(f)), "photometry", Path.GetFileName(f));
-                using var resp = await http.PostAsync("api/v1/uploads", form);
-                Assert.True(resp.IsSuccessStatusCode, $"upload: {(int)resp.StatusCode} {await resp.Content.ReadAsStringAsync()}");
-            }
+            await ScaledModeTests.UploadDemoCampaign(http, Path.Combine(dir, "campaign"));
             long stars;
             using (var c = db.Open()) stars = StarStore.CountWithObservations(c);
             Assert.True(stars >= 900, $"only {stars} stars with photometry were stored");

@@ -54,16 +54,7 @@ public sealed class ScaledModeTests(ITestOutputHelper output)
             }
 
             var sw = Stopwatch.StartNew();
-            using (var form = new MultipartFormDataContent())
-            {
-                form.Add(new StringContent("jd_utc"), "time_scale");
-                form.Add(new StringContent(DemoCampaign.TimeOffset.ToString(CultureInfo.InvariantCulture)), "time_offset");
-                form.Add(new ByteArrayContent(File.ReadAllBytes(Path.Combine(dir, "stars.csv"))), "stars", "stars.csv");
-                foreach (var f in Directory.GetFiles(dir, "photometry-*.csv").Order(StringComparer.Ordinal))
-                    form.Add(new ByteArrayContent(File.ReadAllBytes(f)), "photometry", Path.GetFileName(f));
-                using var resp = await http.PostAsync("api/v1/uploads", form);
-                Assert.True(resp.IsSuccessStatusCode, $"upload: {(int)resp.StatusCode} {await resp.Content.ReadAsStringAsync()}");
-            }
+            await UploadDemoCampaign(http, dir);
             var db = Database.Postgres(cs);
             int stars;
             using (var c = db.Open()) stars = (int)StarStore.CountWithObservations(c);
@@ -169,6 +160,19 @@ public sealed class ScaledModeTests(ITestOutputHelper output)
         Assert.True(token.WaitForExit(TimeSpan.FromSeconds(90)) == 0, "user token failed:\n" + token.Output);
         // The token is the only line starting with the token prefix (the note goes to standard error).
         return token.Output.Split('\n').Select(l => l.Trim()).Single(l => l.StartsWith("plx_", StringComparison.Ordinal));
+    }
+
+    /// <summary>POST /api/v1/uploads with a demo campaign folder's star list and photometry files (JD_UTC with its offset).</summary>
+    internal static async Task UploadDemoCampaign(HttpClient http, string dir)
+    {
+        using var form = new MultipartFormDataContent();
+        form.Add(new StringContent("jd_utc"), "time_scale");
+        form.Add(new StringContent(DemoCampaign.TimeOffset.ToString(CultureInfo.InvariantCulture)), "time_offset");
+        form.Add(new ByteArrayContent(File.ReadAllBytes(Path.Combine(dir, "stars.csv"))), "stars", "stars.csv");
+        foreach (var f in Directory.GetFiles(dir, "photometry-*.csv").Order(StringComparer.Ordinal))
+            form.Add(new ByteArrayContent(File.ReadAllBytes(f)), "photometry", Path.GetFileName(f));
+        using var resp = await http.PostAsync("api/v1/uploads", form);
+        Assert.True(resp.IsSuccessStatusCode, $"upload: {(int)resp.StatusCode} {await resp.Content.ReadAsStringAsync()}");
     }
 
     internal static async Task WaitForHealth(HttpClient http, PulseLadderProcess web)
