@@ -2,7 +2,6 @@ using System.Globalization;
 using System.Text.RegularExpressions;
 using Dapper;
 using Npgsql;
-using PulseLadder.Core.Pipeline;
 using PulseLadder.Demo;
 using PulseLadder.Storage;
 using PulseLadder.Web;
@@ -169,18 +168,12 @@ public sealed class ComposeFileTests(ITestOutputHelper output)
             long stars;
             using (var c = db.Open()) stars = StarStore.CountWithObservations(c);
             Assert.True(stars >= 900, $"only {stars} stars with photometry were stored");
-            await Until(() => Done(db) >= stars, TimeSpan.FromSeconds(300), "every star analysed", workers, all);
+            await Until(() => ScaledModeTests.Done(db) >= stars, TimeSpan.FromSeconds(300), "every star analysed", workers, all);
             Assert.False(web.HasExited, "web exited:\n" + web.Output);
             foreach (var w in workers) Assert.False(w.Current.HasExited, $"{w.Name} exited:\n{w.Current.Output}");
 
             using var conn = db.Open();
-            var perStar = conn.Query<(long Current, long Total)>("""
-                SELECT (SELECT COUNT(*) FROM analyses a WHERE a.star_id = s.id AND a.revision = s.revision AND a.pipeline_version = @v),
-                       (SELECT COUNT(*) FROM analyses a WHERE a.star_id = s.id)
-                FROM stars s WHERE EXISTS (SELECT 1 FROM observations o WHERE o.star_id = s.id)
-                """, new { v = PipelineVersion.Current }).AsList();
-            Assert.Equal(stars, perStar.Count);
-            Assert.All(perStar, r => Assert.Equal((1L, 1L), r));
+            ScaledModeTests.AssertOneCurrentResultPerStar(conn, stars);
 
             // The worker service did the work it is there for: jobs ran in the worker processes (Hangfire's server ids
             // carry the process id), not only in the web host's one worker thread.
@@ -253,16 +246,6 @@ public sealed class ComposeFileTests(ITestOutputHelper output)
         return c.ExecuteScalar<bool>("SELECT to_regclass('hangfire.server') IS NOT NULL")
             ? c.ExecuteScalar<long>("SELECT COUNT(*) FROM hangfire.server")
             : 0;
-    }
-
-    private static long Done(Database db)
-    {
-        using var c = new NpgsqlConnection(db.ConnectionString);
-        c.Open();
-        return c.ExecuteScalar<long>("""
-            SELECT COUNT(*) FROM stars s
-            WHERE EXISTS (SELECT 1 FROM analyses a WHERE a.star_id = s.id AND a.revision = s.revision AND a.pipeline_version = @v)
-            """, new { v = PipelineVersion.Current });
     }
 
     // ---- docker-compose.yml, read as compose reads it ----
